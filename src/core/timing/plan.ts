@@ -88,7 +88,7 @@ export function planKeying(message: string, options: PlanOptions): KeyingPlan {
   const farnsworthWpm = options.farnsworthWpm ?? null;
   let letterGap = 3 * unit;
   let wordGap = 7 * unit;
-  if (farnsworthWpm !== null && farnsworthWpm !== options.wpm) {
+  if (farnsworthWpm !== null) {
     if (farnsworthWpm >= options.wpm) {
       throw new InputError(`Farnsworth speed must be below the character speed ${options.wpm} wpm (got ${farnsworthWpm})`);
     }
@@ -164,7 +164,7 @@ export function planKeying(message: string, options: PlanOptions): KeyingPlan {
   return {
     text: parsed.text,
     wpm: options.wpm,
-    farnsworthWpm: farnsworthWpm !== null && farnsworthWpm !== options.wpm ? farnsworthWpm : null,
+    farnsworthWpm,
     unitMs: unit,
     totalMs: last[1],
     marks,
