@@ -91,7 +91,7 @@ export function planToCHeader(plan: KeyingPlan, tickHz: number, name: string): s
   lines.push(` * Timer ${tickHz} Hz. Edge times are rounded to ticks (error diffusion): largest per-element`);
   lines.push(` * rounding error ${q.maxStepErrorTicks.toFixed(3)} ticks, largest drift at any edge ${q.maxDriftTicks.toFixed(3)} ticks,`);
   lines.push(` * total drift ${q.totalDriftTicks.toFixed(3)} ticks (${roundMs((q.totalDriftTicks * 1000) / tickHz)} ms).`);
-  lines.push(` * ${upper}_STEPS alternate key-down and key-up, starting with key-down.`);
+  lines.push(` * ${id}_steps alternates key-down and key-up, starting with key-down.`);
   lines.push(' *');
   for (const s of SAFETY) lines.push(` * ${s}`);
   lines.push(' */');
