@@ -1,0 +1,240 @@
+/**
+ * One way in for audio: a WAV file, raw PCM, or stdin (`-`), read whole when small and in chunks
+ * when large or piped, always handed out as Float32Array chunks (one array per channel).
+ */
+import { stat } from 'node:fs/promises';
+import { checkRange, InputError } from '../core/errors.js';
+import { readInputFile } from './files.js';
+import { decodeWavBytes } from './wav-read.js';
+import {
+  MAX_CHANNELS,
+  RawPcmParser,
+  readFileBlocks,
+  readStreamBlocks,
+  WavStreamParser,
+  frameBytes,
+  type RawEncoding,
+} from './wav-stream.js';
+
+/** Files larger than this take the streaming path [bytes] (64 MiB). */
+export const STREAM_ABOVE_BYTES = 64 * 1024 * 1024;
+/** Largest chunk handed out by the whole-file path [frames]. */
+const WHOLE_CHUNK_FRAMES = 1 << 16;
+
+export interface OpenAudioOptions {
+  /** Headerless PCM layout; needs `rate` (and `channels` when not mono). */
+  raw?: RawEncoding;
+  /** Raw PCM sample rate [Hz], 8000…192000. */
+  rate?: number;
+  /** Raw PCM channels, 1…MAX_CHANNELS (default 1). */
+  channels?: number;
+  /** Where `-` reads from (the CLI passes its stdin). */
+  stdin?: AsyncIterable<unknown>;
+  /** Stream files above this size [bytes] (default 64 MiB); 0 streams everything. */
+  streamAboveBytes?: number;
+  /** Block size for streamed reads [bytes] (default 1 MiB). */
+  blockBytes?: number;
+}
+
+export interface AudioSource {
+  /** The path, or `stdin`. */
+  name: string;
+  sampleRate: number;
+  channelCount: number;
+  /** `16-bit PCM`, `32-bit float`, `raw 16-bit PCM`, … */
+  encoding: string;
+  /** Length of the audio [ms], or null when unknown in advance (stdin). */
+  durationMs: number | null;
+  /** True when read in chunks rather than whole. */
+  streaming: boolean;
+  /** Filled as reading proceeds (truncated data, NaN samples read as 0, …); complete once chunks() has ended. */
+  warnings: string[];
+  /** The audio, chunk by chunk (one Float32Array per channel). Can be iterated once. */
+  chunks(): AsyncIterable<Float32Array[]>;
+}
+
+type Parser = WavStreamParser | RawPcmParser;
+
+/**
+ * Opens a recording for reading. `-` is stdin (always streamed); files over `streamAboveBytes`
+ * (64 MiB) are streamed from disk; smaller WAV files are read whole. Raw PCM needs `raw` and `rate`.
+ * Every failure is a one-line InputError naming the input.
+ * @example
+ * const audio = await openAudio('beacon.wav');
+ * for await (const [left] of audio.chunks()) decoder.push(left!);
+ */
+export async function openAudio(pathOrDash: string, options: OpenAudioOptions = {}): Promise<AudioSource> {
+  const isStdin = pathOrDash === '-';
+  const name = isStdin ? 'stdin' : pathOrDash;
+  if (options.raw === undefined && (options.rate !== undefined || options.channels !== undefined)) {
+    throw new InputError('--rate and --channels describe raw PCM: give --raw s16le or --raw f32le too');
+  }
+  if (options.raw !== undefined) {
+    if (options.raw !== 's16le' && options.raw !== 'f32le') throw new InputError(`--raw must be one of s16le, f32le (got '${String(options.raw)}')`);
+    if (options.rate === undefined) throw new InputError('raw PCM needs its sample rate: give --rate HZ');
+    checkRange('--rate', options.rate, 8000, 192_000, 'Hz');
+    checkRange('--channels', options.channels ?? 1, 1, MAX_CHANNELS);
+    if (!Number.isInteger(options.rate) || !Number.isInteger(options.channels ?? 1)) throw new InputError('--rate and --channels must be whole numbers');
+  }
+
+  let size: number | null = null;
+  if (!isStdin) {
+    try {
+      const st = await stat(pathOrDash);
+      if (st.isDirectory()) throw new InputError(`${name}: is a folder, not a file`);
+      size = st.size;
+    } catch (err) {
+      if (err instanceof InputError) throw err;
+      throw new InputError(`${name}: no such file`);
+    }
+    if (size === 0) throw new InputError(`${name}: empty file`);
+  }
+
+  const threshold = options.streamAboveBytes ?? STREAM_ABOVE_BYTES;
+  if (!isStdin && options.raw === undefined && size! <= threshold) return openWavBytes(name, await readInputFile(pathOrDash));
+
+  let blocks: AsyncIterator<Uint8Array>;
+  if (isStdin) {
+    if (!options.stdin) throw new InputError('no stdin to read from');
+    blocks = readStreamBlocks(options.stdin)[Symbol.asyncIterator]();
+  } else {
+    blocks = readFileBlocks(pathOrDash, options.blockBytes)[Symbol.asyncIterator]();
+  }
+  const parser: Parser =
+    options.raw !== undefined
+      ? new RawPcmParser(name, { encoding: options.raw, sampleRate: options.rate!, channelCount: options.channels ?? 1 })
+      : new WavStreamParser(name);
+
+  // Read until the header is known; keep the audio those first blocks held (at most one block).
+  const early: Float32Array[][] = [];
+  let ended = false;
+  while (parser instanceof WavStreamParser && parser.format === null) {
+    const r = await blocks.next();
+    if (r.done) {
+      ended = true;
+      parser.finish(); // throws the right message (empty, not a WAV, no fmt, no data)
+      break;
+    }
+    early.push(...parser.push(r.value));
+  }
+  const format = parser.format!;
+  let durationMs: number | null = null;
+  if (size !== null) {
+    const offset = parser instanceof WavStreamParser ? parser.format!.dataOffset : 0;
+    const declared = parser instanceof WavStreamParser ? parser.format!.dataBytes : null;
+    const available = Math.max(0, size - offset);
+    const bytes = declared === null ? available : Math.min(declared, available);
+    durationMs = (Math.floor(bytes / frameBytes(format)) / format.sampleRate) * 1000;
+  }
+  const warnings: string[] = [];
+  let used = false;
+  return {
+    name,
+    sampleRate: format.sampleRate,
+    channelCount: format.channelCount,
+    encoding: parser instanceof WavStreamParser ? parser.format!.encoding : (parser.format.encoding),
+    durationMs,
+    streaming: true,
+    warnings,
+    chunks() {
+      if (used) throw new Error('audio chunks can be read only once');
+      used = true;
+      return (async function* () {
+        try {
+          for (const c of early.splice(0)) yield c;
+          while (!ended && !(parser instanceof WavStreamParser && parser.done)) {
+            const r = await blocks.next();
+            if (r.done) break;
+            for (const c of parser.push(r.value)) yield c;
+          }
+          warnings.push(...parser.finish().warnings);
+        } finally {
+          await blocks.return?.();
+        }
+      })();
+    },
+  };
+}
+
+/**
+ * Opens a WAV file already in memory (the whole-file path of openAudio): header checked by the
+ * streaming parser, samples by the whole-file reader (wav-decoder) where it can.
+ */
+export function openWavBytes(name: string, bytes: Uint8Array): AudioSource {
+  const header = new WavStreamParser(name, { headerOnly: true });
+  header.push(bytes);
+  header.finish();
+  const f = header.format!;
+  let channels: Float32Array[];
+  const warnings: string[] = [];
+  const available = bytes.length - f.dataOffset;
+  if (f.dataBytes === null || f.dataBytes > available || f.extensible) {
+    // Open-ended or cut-short data chunk, or WAVE_FORMAT_EXTENSIBLE (which wav-decoder does not read):
+    // the streaming parser reads what is there, with a warning where something is missing.
+    const parser = new WavStreamParser(name);
+    const parts = parser.push(bytes);
+    warnings.push(...parser.finish().warnings);
+    channels = concatChunks(parts, f.channelCount);
+  } else {
+    channels = decodeWavBytes(name, bytes).channels;
+    let bad = 0;
+    if (f.sampleFormat === 'f32') {
+      for (const ch of channels) {
+        for (let i = 0; i < ch.length; i++) {
+          const v = ch[i]!;
+          if (v - v !== 0) {
+            ch[i] = 0;
+            bad++;
+          }
+        }
+      }
+    }
+    if (bad > 0) warnings.push(`${name}: ${bad} non-finite float samples (NaN or infinity) read as 0`);
+  }
+  const frames = channels[0]?.length ?? 0;
+  let used = false;
+  return {
+    name,
+    sampleRate: f.sampleRate,
+    channelCount: f.channelCount,
+    encoding: f.encoding,
+    durationMs: (frames / f.sampleRate) * 1000,
+    streaming: false,
+    warnings,
+    chunks() {
+      if (used) throw new Error('audio chunks can be read only once');
+      used = true;
+      return (async function* () {
+        for (let i = 0; i < frames; i += WHOLE_CHUNK_FRAMES) {
+          yield channels.map((c) => c.subarray(i, Math.min(frames, i + WHOLE_CHUNK_FRAMES)));
+        }
+      })();
+    },
+  };
+}
+
+/** Joins chunks into one array per channel. */
+export function concatChunks(parts: readonly Float32Array[][], channelCount: number): Float32Array[] {
+  const total = parts.reduce((s, p) => s + (p[0]?.length ?? 0), 0);
+  const out: Float32Array[] = [];
+  for (let c = 0; c < channelCount; c++) {
+    const a = new Float32Array(total);
+    let o = 0;
+    for (const p of parts) {
+      a.set(p[c]!, o);
+      o += p[c]!.length;
+    }
+    out.push(a);
+  }
+  return out;
+}
+
+/**
+ * Reads a whole recording (any path openAudio takes) into one array per channel.
+ * Meant for short inputs; long ones should be consumed chunk by chunk.
+ */
+export async function readAllAudio(source: AudioSource): Promise<Float32Array[]> {
+  const parts: Float32Array[][] = [];
+  for await (const c of source.chunks()) parts.push(c);
+  return concatChunks(parts, source.channelCount);
+}

@@ -1,0 +1,148 @@
+/**
+ * Fuzzing the WAV readers with mutated headers and bodies. Every case must end in audio or a one-line
+ * InputError naming the input: never another exception, a hang, or output larger than the input allows.
+ *
+ * CI runs a few thousand cases per property with a fixed seed; `npm run fuzz` (FUZZ_RUNS=200000) runs longer.
+ * Another seed: FUZZ_SEED=123 npx vitest run test/fuzz
+ */
+import fc from 'fast-check';
+import { describe, expect, it } from 'vitest';
+import { InputError } from '../../src/core/errors.js';
+import { seededRandom } from '../../src/core/signal/noise.js';
+import { openWavBytes, readAllAudio } from '../../src/io/audio-source.js';
+import { decodeWavBytes } from '../../src/io/wav-read.js';
+import { RawPcmParser, WavStreamParser } from '../../src/io/wav-stream.js';
+import { encodeWav, type WavEncoding } from '../../src/io/wav-write.js';
+import { mutatedWav } from './mutate.js';
+
+const RUNS = Number(process.env.FUZZ_RUNS ?? 3000);
+const SEED = Number(process.env.FUZZ_SEED ?? 20261201);
+const NAME = 'fuzz.wav';
+
+/** Checks that `err` is the one acceptable failure: a one-line InputError naming the input. */
+function expectOneLineInputError(err: unknown): void {
+  if (!(err instanceof InputError)) throw new Error(`escaped ${String((err as Error)?.name)}: ${String((err as Error)?.message)}`);
+  expect(err.message).not.toContain('\n');
+  expect(err.message.startsWith(`${NAME}: `)).toBe(true);
+  expect(err.exitCode).toBe(2);
+}
+
+/** Streams `bytes` through the push parser in seeded random pieces; returns the number of frames out. */
+function streamFrames(bytes: Uint8Array, pieceSeed: number): { frames: number; channelCount: number } {
+  const random = seededRandom(pieceSeed);
+  const parser = new WavStreamParser(NAME);
+  let frames = 0;
+  for (let pos = 0; pos < bytes.length; ) {
+    const n = 1 + Math.floor(random() * 300);
+    for (const c of parser.push(bytes.subarray(pos, pos + n))) {
+      for (const ch of c) {
+        expect(ch.length).toBe(c[0]!.length);
+        for (const v of ch) if (!Number.isFinite(v)) throw new Error('non-finite sample escaped');
+      }
+      frames += c[0]!.length;
+    }
+    pos += n;
+  }
+  parser.finish();
+  return { frames, channelCount: parser.format!.channelCount };
+}
+
+describe('fuzzing the WAV readers', () => {
+  it(`streaming parser: result or one-line InputError, output bounded by the input (${RUNS} cases)`, () => {
+    fc.assert(
+      fc.property(mutatedWav(), fc.integer({ min: 1, max: 2 ** 31 - 1 }), (bytes, pieceSeed) => {
+        try {
+          const { frames, channelCount } = streamFrames(bytes, pieceSeed);
+          // Every sample needs at least one byte of input: no output is sized from a header field.
+          expect(frames * channelCount).toBeLessThanOrEqual(bytes.length);
+        } catch (err) {
+          if (err instanceof Error && /escaped|non-finite/.test(err.message)) throw err;
+          expectOneLineInputError(err);
+        }
+      }),
+      { numRuns: RUNS, seed: SEED },
+    );
+  });
+
+  it(`whole-file path of openAudio: result or one-line InputError, same samples as the streaming parser (${RUNS} cases)`, async () => {
+    await fc.assert(
+      fc.asyncProperty(mutatedWav(), async (bytes) => {
+        let whole: Float32Array[] | null = null;
+        try {
+          whole = await readAllAudio(openWavBytes(NAME, bytes));
+        } catch (err) {
+          expectOneLineInputError(err);
+        }
+        if (whole === null) return;
+        const total = whole.reduce((s, c) => s + c.length, 0);
+        expect(total).toBeLessThanOrEqual(bytes.length);
+        for (const ch of whole) for (const v of ch) expect(Number.isFinite(v)).toBe(true);
+        // Whatever the whole-file path accepts, the streaming path reads to the same length.
+        const { frames } = streamFrames(bytes, 1);
+        expect(frames).toBe(whole[0]?.length ?? 0);
+      }),
+      { numRuns: RUNS, seed: SEED + 1 },
+    );
+  });
+
+  it(`whole-file reader (decodeWavBytes): result or one-line InputError once the header passes the streaming check (${RUNS} cases)`, () => {
+    fc.assert(
+      fc.property(mutatedWav(), (bytes) => {
+        // The header check guards the allocation wav-decoder makes from the header's channel count.
+        const header = new WavStreamParser(NAME, { headerOnly: true });
+        try {
+          header.push(bytes);
+          header.finish();
+        } catch (err) {
+          expectOneLineInputError(err);
+          return;
+        }
+        try {
+          const audio = decodeWavBytes(NAME, bytes);
+          expect(audio.channels.reduce((s, c) => s + c.length, 0)).toBeLessThanOrEqual(bytes.length);
+        } catch (err) {
+          expectOneLineInputError(err);
+        }
+      }),
+      { numRuns: RUNS, seed: SEED + 2 },
+    );
+  });
+
+  it(`raw PCM parser: any bytes in any pieces give whole frames or nothing (${RUNS} cases)`, () => {
+    fc.assert(
+      fc.property(
+        fc.uint8Array({ maxLength: 2000 }),
+        fc.constantFrom('s16le' as const, 'f32le' as const),
+        fc.integer({ min: 1, max: 8 }),
+        fc.integer({ min: 1, max: 64 }),
+        (bytes, encoding, channelCount, piece) => {
+          const parser = new RawPcmParser('-', { encoding, sampleRate: 8000, channelCount });
+          let frames = 0;
+          for (let pos = 0; pos < bytes.length; pos += piece) {
+            for (const c of parser.push(bytes.subarray(pos, pos + piece))) {
+              frames += c[0]!.length;
+              for (const ch of c) for (const v of ch) expect(Number.isFinite(v)).toBe(true);
+            }
+          }
+          // Frames = whole frames in the input [analytic].
+          expect(frames).toBe(Math.floor(bytes.length / ((encoding === 's16le' ? 2 : 4) * channelCount)));
+          try {
+            parser.finish();
+          } catch (err) {
+            expect(err).toBeInstanceOf(InputError);
+            expect(bytes.length).toBe(0);
+          }
+        },
+      ),
+      { numRuns: RUNS, seed: SEED + 3 },
+    );
+  });
+
+  it('the unmutated inputs of the fuzzer are read correctly (the fuzz starts from valid files)', () => {
+    for (const encoding of ['u8', 's16', 's24', 's32', 'f32'] as WavEncoding[]) {
+      const bytes = encodeWav({ sampleRate: 8000, channels: [new Float32Array(100).fill(0.5)], encoding });
+      const { frames } = streamFrames(bytes, 7);
+      expect(frames).toBe(100);
+    }
+  });
+});
