@@ -1,0 +1,101 @@
+/**
+ * Small statistics helpers for the timing report: means, medians, spreads, a two-class split of
+ * durations on a log scale, and a straight-line fit. Pure functions over plain number arrays.
+ */
+
+/** Arithmetic mean, or NaN for an empty list. @example mean([1, 2, 3]) //=> 2 */
+export function mean(values: readonly number[]): number {
+  if (values.length === 0) return NaN;
+  let s = 0;
+  for (const v of values) s += v;
+  return s / values.length;
+}
+
+/**
+ * Quantile by linear interpolation between order statistics (the usual "type 7" definition).
+ * @param q - Probability, 0…1.
+ * @example quantile([1, 2, 3, 4], 0.5) //=> 2.5
+ */
+export function quantile(values: readonly number[], q: number): number {
+  if (values.length === 0) return NaN;
+  const s = [...values].sort((a, b) => a - b);
+  const pos = (s.length - 1) * q;
+  const lo = Math.floor(pos);
+  const hi = Math.ceil(pos);
+  return s[lo]! + (s[hi]! - s[lo]!) * (pos - lo);
+}
+
+/** Median. @example median([3, 1, 2]) //=> 2 */
+export function median(values: readonly number[]): number {
+  return quantile(values, 0.5);
+}
+
+/** Sample standard deviation (n − 1 in the denominator); 0 for fewer than two values. @example standardDeviation([1, 3]) //=> 1.414… */
+export function standardDeviation(values: readonly number[]): number {
+  if (values.length < 2) return 0;
+  const m = mean(values);
+  let s = 0;
+  for (const v of values) s += (v - m) * (v - m);
+  return Math.sqrt(s / (values.length - 1));
+}
+
+export interface TwoClassSplit {
+  /** Values below this belong to the lower class (the geometric midpoint between the two classes' nearest members). */
+  threshold: number;
+  /** Geometric means of the lower and upper class. */
+  lowMean: number;
+  highMean: number;
+}
+
+/**
+ * Best split of positive durations into a shorter and a longer class: the threshold that minimises
+ * the within-class variance of log(duration) (Otsu's criterion on a log scale). Returns null for
+ * fewer than two distinct values.
+ * @example splitTwoClasses([60, 62, 180, 185]).threshold //=> 105.6 (√(62·180))
+ */
+export function splitTwoClasses(values: readonly number[]): TwoClassSplit | null {
+  const logs = values.filter((v) => v > 0).map(Math.log).sort((a, b) => a - b);
+  const n = logs.length;
+  if (n < 2 || logs[0] === logs[n - 1]) return null;
+  const prefix = new Float64Array(n + 1);
+  const prefix2 = new Float64Array(n + 1);
+  for (let i = 0; i < n; i++) {
+    prefix[i + 1] = prefix[i]! + logs[i]!;
+    prefix2[i + 1] = prefix2[i]! + logs[i]! * logs[i]!;
+  }
+  let best = Infinity;
+  let bestK = -1;
+  for (let k = 1; k < n; k++) {
+    if (logs[k] === logs[k - 1]) continue;
+    const sLo = prefix[k]!;
+    const sHi = prefix[n]! - sLo;
+    const within = prefix2[n]! - (sLo * sLo) / k - (sHi * sHi) / (n - k);
+    if (within < best) {
+      best = within;
+      bestK = k;
+    }
+  }
+  if (bestK < 0) return null;
+  return {
+    threshold: Math.exp((logs[bestK - 1]! + logs[bestK]!) / 2),
+    lowMean: Math.exp(prefix[bestK]! / bestK),
+    highMean: Math.exp((prefix[n]! - prefix[bestK]!) / (n - bestK)),
+  };
+}
+
+/**
+ * Least-squares straight line y = intercept + slope·x. With fewer than two distinct x the slope is 0.
+ * @example fitLine([0, 1, 2], [1, 3, 5]) //=> { slope: 2, intercept: 1 }
+ */
+export function fitLine(xs: readonly number[], ys: readonly number[]): { slope: number; intercept: number } {
+  const mx = mean(xs);
+  const my = mean(ys);
+  let sxx = 0;
+  let sxy = 0;
+  for (let i = 0; i < xs.length; i++) {
+    sxx += (xs[i]! - mx) * (xs[i]! - mx);
+    sxy += (xs[i]! - mx) * (ys[i]! - my);
+  }
+  const slope = sxx > 0 ? sxy / sxx : 0;
+  return { slope, intercept: my - slope * mx };
+}

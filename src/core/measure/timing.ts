@@ -1,0 +1,320 @@
+/**
+ * Timing statistics of a keying timeline: speed, weighting, dash/dot ratio, gap classes, jitter,
+ * speed drift and a histogram of mark and gap lengths. Pure: plain data in, plain data out.
+ *
+ * Definitions used throughout (the same as the planner's, src/core/timing/plan.ts):
+ * - unit: half the period of a dot plus the element gap after it, (dit + element gap) / 2. Weighting
+ *   and keying compensation move time from the gap to the mark and leave this period unchanged.
+ * - weight: the dot's share of dot + following element gap, in %; 50 % is standard.
+ * - dash/dot ratio: dah length / dit length (3 at standard timing and 50 % weight, ITU-R M.1677-1 §2).
+ * - gap classes: after correcting a gap for the mark lengthening, below 2 units is an element gap,
+ *   2…5 units a letter gap, above 5 units a word gap (cut-offs near 2 and 5 units are common practice);
+ *   longer gaps that fall into two clear groups (Farnsworth spacing, hand-sent word gaps) are split
+ *   between letter and word at the best two-class split instead.
+ */
+import { textForPattern } from '../morse/alphabet.js';
+import type { Interval } from '../timeline.js';
+import { checkRange, InputError } from '../errors.js';
+import { fitLine, median, splitTwoClasses, standardDeviation } from './timing-stats.js';
+
+export type ElementKind = 'dit' | 'dah';
+export type GapClass = 'element' | 'letter' | 'word';
+
+export interface TimingOptions {
+  /**
+   * A first guess of the unit [ms], 1…2000, e.g. from the intended plan. Only seeds the
+   * classification (which decides whether a message of all-equal marks is dots or dashes); the
+   * reported unit is always measured.
+   */
+  unitMsHint?: number;
+  /** Histogram bin width [units], 0.05…2; default 0.25. */
+  histogramBinUnits?: number;
+  /** Centre of the last histogram bin [units], 2…200; longer intervals are counted in `marksOver`/`gapsOver`. Default 10. */
+  histogramMaxUnits?: number;
+}
+
+/** Summary of one class of intervals, in units. */
+export interface ClassStats {
+  count: number;
+  /** Median length [units]. */
+  median: number;
+  /** Standard deviation of the length [units]. */
+  spread: number;
+}
+
+/** Counts of mark and gap lengths in bins of `binUnits`, from 0 to `maxUnits`. */
+export interface TimingHistogram {
+  binUnits: number;
+  maxUnits: number;
+  /** Count per bin; bin k is centred on k·binUnits and holds lengths in [(k − ½)·binUnits, (k + ½)·binUnits). */
+  marks: number[];
+  gaps: number[];
+  /** Lengths beyond the last bin (centred on `maxUnits`). */
+  marksOver: number;
+  gapsOver: number;
+}
+
+/** One observed mark with its class and the class of the gap after it. */
+export interface MeasuredElement {
+  startMs: number;
+  endMs: number;
+  kind: ElementKind;
+  /** Class of the gap after this mark; null for the last mark. */
+  gapAfter: GapClass | null;
+}
+
+export interface TimingReport {
+  markCount: number;
+  /** First key-down to last key-up [ms]. */
+  durationMs: number;
+  /** Character speed [wpm, PARIS] = 1200 / unitMs. */
+  wpm: number;
+  /** Overall speed [wpm]: the speed at which standard spacing would fill the same time. */
+  effectiveWpm: number;
+  unitMs: number;
+  /** Weighting [%], dot share of dot + element gap; null without a dot followed by an element gap or a dash to compare with. */
+  weightPct: number | null;
+  /** Median dah / median dit; null unless both occur. */
+  dahDitRatio: number | null;
+  /** Median dit and dah lengths [ms]; null when absent. */
+  ditMs: number | null;
+  dahMs: number | null;
+  markUnits: { dit: ClassStats | null; dah: ClassStats | null };
+  gapUnits: { element: ClassStats | null; letter: ClassStats | null; word: ClassStats | null };
+  /** RMS deviation of the edges from a grid fitted to each character, in % of a unit (edge jitter); null without edges to compare. */
+  jitterPct: number | null;
+  /** Speed change from the first to the last word along a straight line fitted to the word speeds [wpm]; null with fewer than two words. */
+  driftWpm: number | null;
+  /** Speed of each word [wpm]. */
+  wordWpm: number[];
+  histogram: TimingHistogram;
+  /** The marks read as text (`*` for a pattern not in the table). */
+  text: string;
+  elements: MeasuredElement[];
+  warnings: string[];
+}
+
+/** Nominal lengths in units at standard timing (ITU-R M.1677-1 §2). */
+const NOMINAL_UNITS = { dit: 1, dah: 3, element: 1, letter: 3, word: 7 } as const;
+
+function stats(lengthsMs: readonly number[], unit: number): ClassStats | null {
+  if (lengthsMs.length === 0) return null;
+  const u = lengthsMs.map((x) => x / unit);
+  return { count: u.length, median: median(u), spread: standardDeviation(u) };
+}
+
+/** Checks marks: finite, each positive in length, in time order and not overlapping. */
+export function checkMarks(marks: readonly Interval[]): void {
+  if (marks.length === 0) throw new InputError('no key-down marks to measure');
+  let prevEnd = -Infinity;
+  marks.forEach(([a, b], i) => {
+    if (!Number.isFinite(a) || !Number.isFinite(b)) throw new InputError(`mark ${i + 1}: times must be numbers (got ${a}, ${b})`);
+    if (b <= a) throw new InputError(`mark ${i + 1}: ends at ${b} ms, not after its start ${a} ms`);
+    if (a < prevEnd) throw new InputError(`mark ${i + 1}: starts at ${a} ms, before the previous mark ends (${prevEnd} ms)`);
+    prevEnd = b;
+  });
+}
+
+interface Classification {
+  isDah: boolean[];
+  gapClass: GapClass[];
+  unitMs: number;
+}
+
+/** Classifies marks (dit/dah) and gaps (element/letter/word) and estimates the unit. */
+function classify(lens: readonly number[], gaps: readonly number[], hint: number | undefined, warnings: string[]): Classification {
+  const split = splitTwoClasses(lens);
+  const twoKinds = split !== null && split.highMean / split.lowMean >= 1.7;
+  let isDah: boolean[];
+  if (twoKinds) isDah = lens.map((x) => x > split.threshold);
+  else if (hint !== undefined) isDah = lens.map(() => median(lens) > 2 * hint);
+  else {
+    isDah = lens.map(() => false);
+    if (lens.length > 1) warnings.push('all marks have about the same length: read as dots (give the intended message to decide)');
+  }
+  const dits = lens.filter((_, i) => !isDah[i]);
+  const dahs = lens.filter((_, i) => isDah[i]);
+
+  let unit: number;
+  if (hint !== undefined) unit = hint;
+  else if (dits.length > 0) {
+    // The shortest dot periods (dot + element gap) are 2 units whatever the weighting.
+    const periods = lens.flatMap((x, i) => (!isDah[i] && i < gaps.length ? [x + gaps[i]!] : []));
+    unit = median(dits);
+    if (periods.length > 0) {
+      const low = periods.filter((p) => p < 1.45 * Math.min(...periods));
+      const u0 = median(low) / 2;
+      const ditShare = median(dits) / u0;
+      if (ditShare >= 0.4 && ditShare <= 1.6) unit = u0;
+    }
+  } else unit = median(dahs) / 3;
+
+  let gapClass: GapClass[] = gaps.map(() => 'letter');
+  for (let iter = 0; iter < 4; iter++) {
+    const extra = dits.length > 0 ? median(dits) - unit : median(dahs) - 3 * unit;
+    const corrected = gaps.map((g) => g + extra);
+    gapClass = corrected.map((c) => (c < 2 * unit ? 'element' : c < 5 * unit ? 'letter' : 'word'));
+    const longer = corrected.filter((c) => c >= 2 * unit);
+    const s = splitTwoClasses(longer);
+    if (s !== null && s.highMean / s.lowMean >= 1.6 && s.highMean >= 4 * unit) {
+      gapClass = corrected.map((c) => (c < 2 * unit ? 'element' : c < s.threshold ? 'letter' : 'word'));
+    }
+    const el = gaps.filter((_, i) => gapClass[i] === 'element');
+    let next: number;
+    if (dits.length > 0 && el.length > 0) next = (median(dits) + median(el)) / 2;
+    else if (dahs.length > 0 && el.length > 0) next = (median(dahs) + median(el)) / 4;
+    else if (dits.length > 0 && dahs.length > 0) next = (median(dahs) - median(dits)) / 2;
+    else if (dits.length > 0) next = median(dits);
+    else next = median(dahs) / 3;
+    if (Math.abs(next - unit) < 1e-9 * unit) {
+      unit = next;
+      break;
+    }
+    unit = next;
+  }
+  return { isDah, gapClass, unitMs: unit };
+}
+
+function histogramOf(lensUnits: readonly number[], binUnits: number, maxUnits: number): { counts: number[]; over: number } {
+  const bins = Math.floor(maxUnits / binUnits + 1e-9) + 1;
+  const counts = new Array<number>(bins).fill(0);
+  let over = 0;
+  for (const x of lensUnits) {
+    const k = Math.round(x / binUnits);
+    if (k >= bins) over++;
+    else counts[Math.max(0, k)]!++;
+  }
+  return { counts, over };
+}
+
+/**
+ * Measures how a timeline was keyed.
+ *
+ * @param timeline - Key-down intervals `marks` [ms], in time order, not overlapping (a Timeline or
+ *   anything with `marks`).
+ * @param options - Unit hint and histogram layout, see {@link TimingOptions}.
+ * @returns Speed, unit, weighting, dash/dot ratio, gap classes in units (median, spread), edge jitter
+ *   in % of a unit, speed drift across words, a histogram, and each mark's class.
+ * @throws InputError for an empty or malformed list of marks.
+ * @example measureTiming({ marks: planKeying('PARIS', { wpm: 20 }).marks }).unitMs //=> 60
+ */
+export function measureTiming(timeline: { marks: readonly Interval[] }, options: TimingOptions = {}): TimingReport {
+  const marks = timeline.marks;
+  checkMarks(marks);
+  const hint = options.unitMsHint === undefined ? undefined : checkRange('unit hint', options.unitMsHint, 1, 2000, 'ms');
+  const binUnits = checkRange('histogram bin', options.histogramBinUnits ?? 0.25, 0.05, 2, 'units');
+  const maxUnits = checkRange('histogram range', options.histogramMaxUnits ?? 10, 2, 200, 'units');
+  const warnings: string[] = [];
+
+  const lens = marks.map(([a, b]) => b - a);
+  const gaps = marks.slice(1).map(([a], i) => a - marks[i]![1]);
+  const { isDah, gapClass, unitMs: unit } = classify(lens, gaps, hint, warnings);
+
+  const dits = lens.filter((_, i) => !isDah[i]);
+  const dahs = lens.filter((_, i) => isDah[i]);
+  const gapsOf = (c: GapClass): number[] => gaps.filter((_, i) => gapClass[i] === c);
+  const el = gapsOf('element');
+  const ditMs = dits.length > 0 ? median(dits) : null;
+  const dahMs = dahs.length > 0 ? median(dahs) : null;
+
+  let weightPct: number | null = null;
+  if (ditMs !== null && el.length > 0) weightPct = (100 * ditMs) / (ditMs + median(el));
+  else if (ditMs !== null && dahMs !== null) weightPct = (100 * ditMs) / (2 * unit);
+  else if (dahMs !== null && el.length > 0) weightPct = (100 * (dahMs - 2 * unit)) / (2 * unit);
+  if (el.length === 0) warnings.push('no gaps inside characters: the unit and weighting assume a dash/dot ratio of 3');
+
+  const durationMs = marks[marks.length - 1]![1] - marks[0]![0];
+  let nominalUnits = 0;
+  isDah.forEach((d) => (nominalUnits += d ? NOMINAL_UNITS.dah : NOMINAL_UNITS.dit));
+  gapClass.forEach((c) => (nominalUnits += NOMINAL_UNITS[c]));
+
+  // Typical length of each class [ms], the "fitted grid" for jitter and word speeds.
+  const typical = {
+    dit: ditMs ?? unit,
+    dah: dahMs ?? 3 * unit,
+    element: el.length > 0 ? median(el) : 2 * unit - (ditMs ?? unit),
+  };
+
+  // Edge jitter: within each character, the edges against the class lengths laid end to end,
+  // with the character's own offset removed (one degree of freedom per character).
+  let ssr = 0;
+  let dof = 0;
+  const chars: number[][] = [];
+  let current: number[] = [];
+  marks.forEach((_, i) => {
+    current.push(i);
+    if (i === marks.length - 1 || gapClass[i] !== 'element') {
+      chars.push(current);
+      current = [];
+    }
+  });
+  for (const ch of chars) {
+    const resid: number[] = [];
+    let t = 0;
+    ch.forEach((i, k) => {
+      if (k > 0) t += typical.element;
+      resid.push(marks[i]![0] - t);
+      t += isDah[i] ? typical.dah : typical.dit;
+      resid.push(marks[i]![1] - t);
+    });
+    const m = resid.reduce((a, b) => a + b, 0) / resid.length;
+    for (const r of resid) ssr += (r - m) * (r - m);
+    dof += resid.length - 1;
+  }
+  const jitterPct = dof > 0 ? (100 * Math.sqrt(ssr / dof)) / unit : null;
+
+  // Word speeds: observed element-level time of each word over its typical length.
+  const wordWpm: number[] = [];
+  let obs = 0;
+  let exp = 0;
+  marks.forEach((_, i) => {
+    obs += lens[i]!;
+    exp += isDah[i] ? typical.dah : typical.dit;
+    if (i < gaps.length && gapClass[i] === 'element') {
+      obs += gaps[i]!;
+      exp += typical.element;
+    }
+    if (i === marks.length - 1 || gapClass[i] === 'word') {
+      wordWpm.push(1200 / ((unit * obs) / exp));
+      obs = 0;
+      exp = 0;
+    }
+  });
+  let driftWpm: number | null = null;
+  if (wordWpm.length >= 2) {
+    const { slope } = fitLine(wordWpm.map((_, k) => k), wordWpm);
+    driftWpm = slope * (wordWpm.length - 1);
+  }
+
+  const markHist = histogramOf(lens.map((x) => x / unit), binUnits, maxUnits);
+  const gapHist = histogramOf(gaps.map((x) => x / unit), binUnits, maxUnits);
+
+  let text = '';
+  for (const ch of chars) {
+    const pattern = ch.map((i) => (isDah[i] ? '-' : '.')).join('');
+    text += textForPattern(pattern) ?? '*';
+    const last = ch[ch.length - 1]!;
+    if (gapClass[last] === 'word') text += ' ';
+  }
+
+  return {
+    markCount: marks.length,
+    durationMs,
+    wpm: 1200 / unit,
+    effectiveWpm: (1200 * nominalUnits) / durationMs,
+    unitMs: unit,
+    weightPct,
+    dahDitRatio: ditMs !== null && dahMs !== null ? dahMs / ditMs : null,
+    ditMs,
+    dahMs,
+    markUnits: { dit: stats(dits, unit), dah: stats(dahs, unit) },
+    gapUnits: { element: stats(el, unit), letter: stats(gapsOf('letter'), unit), word: stats(gapsOf('word'), unit) },
+    jitterPct,
+    driftWpm,
+    wordWpm,
+    histogram: { binUnits, maxUnits, marks: markHist.counts, gaps: gapHist.counts, marksOver: markHist.over, gapsOver: gapHist.over },
+    text,
+    elements: marks.map(([a, b], i) => ({ startMs: a, endMs: b, kind: isDah[i] ? 'dah' : 'dit', gapAfter: i < gapClass.length ? gapClass[i]! : null })),
+    warnings,
+  };
+}
