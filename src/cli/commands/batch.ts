@@ -1,13 +1,313 @@
+import { closeSync, existsSync, fsyncSync, linkSync, openSync, readdirSync, renameSync, statSync, unlinkSync, writeSync } from 'node:fs';
+import { availableParallelism } from 'node:os';
+import { basename, dirname, extname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
 import type { Command } from 'commander';
+import { InputError } from '../../core/errors.js';
+import { formatJson } from '../../io/json.js';
+import { BATCH_COLUMNS, errorLine, type BatchRow } from '../analyze-recording.js';
+import type { BatchTask } from '../batch-worker.js';
 import type { CommandContext } from '../io.js';
+import { numberIn } from '../options.js';
+import { createProgress, formatElapsed } from '../progress.js';
 
-/** Placeholder: the 'batch' command is being built. */
+export interface BatchCliOptions {
+  jobs?: number;
+  out?: string;
+  force?: boolean;
+  json?: boolean;
+  tone?: number;
+  channel?: number;
+  shapeSeconds: number;
+  shape: boolean;
+}
+
+export type ReportFormat = 'csv' | 'jsonl';
+
+/** Audio files a folder contributes (by extension, sorted, not recursive). */
+const AUDIO_EXTENSIONS = new Set(['.wav', '.wave']);
+
+/**
+ * Expands FOLDER|FILES… into a file list: a folder gives its .wav files (sorted, not recursive);
+ * a file is taken as it is (a bad one becomes a row with its error). A folder without WAVs is an error.
+ */
+export function collectInputs(args: readonly string[]): string[] {
+  const files: string[] = [];
+  for (const arg of args) {
+    let isDir = false;
+    try {
+      isDir = statSync(arg).isDirectory();
+    } catch {
+      isDir = false;
+    }
+    if (!isDir) {
+      files.push(arg);
+      continue;
+    }
+    const inside = readdirSync(arg, { withFileTypes: true })
+      .filter((e) => !e.isDirectory() && AUDIO_EXTENSIONS.has(extname(e.name).toLowerCase()))
+      .map((e) => join(arg, e.name))
+      .sort();
+    if (inside.length === 0) throw new InputError(`${arg}: no .wav files in this folder`);
+    files.push(...inside);
+  }
+  return files;
+}
+
+function csvField(value: unknown): string {
+  if (value === null || value === undefined) return '';
+  const s = String(value);
+  return /[",\n\r]|^\s|\s$/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
+}
+
+/** The CSV header line of a batch report (RFC 4180 quoting). */
+export function csvHeader(): string {
+  return `${BATCH_COLUMNS.join(',')}\n`;
+}
+
+/** One row as a report line: CSV (the columns of BATCH_COLUMNS) or JSON Lines (the whole row). */
+export function formatRow(row: BatchRow, format: ReportFormat): string {
+  if (format === 'jsonl') return `${JSON.stringify(row)}\n`;
+  return `${BATCH_COLUMNS.map((c) => csvField(row[c])).join(',')}\n`;
+}
+
+/** Report format from the file name: `.csv` or `.jsonl`. */
+export function reportFormat(path: string): ReportFormat {
+  const ext = extname(path).toLowerCase();
+  if (ext === '.csv') return 'csv';
+  if (ext === '.jsonl' || ext === '.ndjson') return 'jsonl';
+  throw new InputError(`--out ${path}: the report must end in .csv or .jsonl`);
+}
+
+/**
+ * A report written row by row as files complete, then put in place in one step:
+ * rows are appended (and flushed) to `OUT.partial`, which is renamed to OUT at the end, also after
+ * Ctrl-C. A reader never sees a half-written OUT; if the process is killed outright, the rows done
+ * so far are in `OUT.partial`. An existing OUT is never replaced without `force`, also when it
+ * appeared while the batch ran (no-clobber link instead of rename).
+ */
+export class ReportWriter {
+  readonly path: string;
+  readonly partialPath: string;
+  readonly format: ReportFormat;
+  rows = 0;
+  private fd: number | null;
+  private readonly force: boolean;
+
+  constructor(path: string, force: boolean) {
+    this.path = path;
+    this.format = reportFormat(path);
+    this.force = force;
+    if (!force && existsSync(path)) throw new InputError(`${path}: already exists (use --force to replace it)`);
+    this.partialPath = join(dirname(path), `${basename(path)}.partial`);
+    try {
+      this.fd = openSync(this.partialPath, 'w');
+    } catch (err) {
+      throw new InputError(`${path}: cannot write (${(err as NodeJS.ErrnoException).code ?? (err as Error).message})`);
+    }
+    if (this.format === 'csv') this.write(csvHeader());
+  }
+
+  private write(text: string): void {
+    if (this.fd === null) return;
+    writeSync(this.fd, text);
+  }
+
+  append(row: BatchRow): void {
+    this.write(formatRow(row, this.format));
+    this.rows++;
+  }
+
+  /** Flushes and moves the report into place. */
+  commit(): void {
+    if (this.fd === null) return;
+    fsyncSync(this.fd);
+    closeSync(this.fd);
+    this.fd = null;
+    if (this.force) {
+      renameSync(this.partialPath, this.path);
+      return;
+    }
+    try {
+      linkSync(this.partialPath, this.path);
+    } catch (err) {
+      if ((err as NodeJS.ErrnoException).code === 'EEXIST') {
+        throw new InputError(`${this.path}: appeared while the batch ran; the report is in ${this.partialPath} (use --force to replace)`);
+      }
+      // File systems without hard links: plain rename.
+      renameSync(this.partialPath, this.path);
+      return;
+    }
+    unlinkSync(this.partialPath);
+  }
+}
+
+/** Totals over a batch. */
+export interface BatchSummary {
+  files: number;
+  done: number;
+  ok: number;
+  noSignal: number;
+  maskFail: number;
+  errors: number;
+  /** Audio analysed [s]. */
+  audioS: number;
+  /** Wall time [s]. */
+  wallS: number;
+  /** Audio seconds per wall second. */
+  realTimeFactor: number | null;
+  jobs: number;
+  interrupted: boolean;
+  out: string | null;
+}
+
+export function summarize(rows: readonly BatchRow[], files: number, jobs: number, wallS: number, interrupted: boolean, out: string | null): BatchSummary {
+  const audioS = rows.reduce((s, r) => s + (r.durationS ?? 0), 0);
+  return {
+    files,
+    done: rows.length,
+    ok: rows.filter((r) => r.verdict === 'ok').length,
+    noSignal: rows.filter((r) => r.verdict === 'no signal').length,
+    maskFail: rows.filter((r) => r.verdict === 'mask fail').length,
+    errors: rows.filter((r) => r.verdict === 'error').length,
+    audioS: Math.round(audioS * 1000) / 1000,
+    wallS: Math.round(wallS * 1000) / 1000,
+    realTimeFactor: wallS > 0 && audioS > 0 ? Math.round(audioS / wallS) : null,
+    jobs,
+    interrupted,
+    out,
+  };
+}
+
+function fmt(x: number | null, digits: number, width: number): string {
+  return (x === null ? '–' : x.toFixed(digits)).padStart(width);
+}
+
+/** One human-readable line per file, for stdout while the batch runs. */
+export function formatRowLine(row: BatchRow, nameWidth: number): string {
+  const name = row.file.length > nameWidth ? `…${row.file.slice(row.file.length - nameWidth + 1)}` : row.file.padEnd(nameWidth);
+  const tail = row.verdict === 'error' ? row.error ?? '' : row.text;
+  return `${name} ${fmt(row.durationS, 1, 7)} ${fmt(row.wpm, 1, 5)} ${fmt(row.toneHz, 0, 5)} ${fmt(row.snrDb, 1, 5)} ${fmt(row.riseMs, 2, 6)} ${fmt(row.occupiedBandwidthHz, 0, 6)}  ${row.verdict.padEnd(9)} ${tail}`;
+}
+
+export function headerLine(nameWidth: number): string {
+  return `${'file'.padEnd(nameWidth)} ${'dur s'.padStart(7)} ${'wpm'.padStart(5)} ${'tone'.padStart(5)} ${'snr'.padStart(5)} ${'riseMs'.padStart(6)} ${'obwHz'.padStart(6)}  ${'verdict'.padEnd(9)} text / error`;
+}
+
+/** The compiled worker next to this file (dist/cli/batch-worker.js); from sources, the built one in dist/. */
+export function workerPath(): string {
+  const here = new URL('../batch-worker.js', import.meta.url);
+  if (existsSync(fileURLToPath(here))) return fileURLToPath(here);
+  const built = new URL('../../../dist/cli/batch-worker.js', import.meta.url);
+  if (existsSync(fileURLToPath(built))) return fileURLToPath(built);
+  throw new Error('batch needs the compiled worker dist/cli/batch-worker.js: run npm run build');
+}
+
 export function registerBatch(program: Command, ctx: CommandContext): void {
   program
     .command('batch')
-    .description('(batch: not built yet)')
-    .action(() => {
-      ctx.warn('batch is not built yet');
-      ctx.setExitCode(1);
+    .argument('<inputs...>', 'WAV files and/or folders (a folder gives its .wav files, not recursive)')
+    .summary('decode, time and shape-check every recording in a folder, in parallel')
+    .description(
+      'Analyse many recordings in parallel worker threads: decoded text, speed, tone, SNR, rise time, ' +
+        'occupied bandwidth and a verdict per file. A file that cannot be read is a row with its error. ' +
+        'Rows appear as files complete; with --out they are written to OUT.partial and moved to OUT at the end ' +
+        '(also after Ctrl-C, which stops the batch and keeps the rows done so far).',
+    )
+    .option('-j, --jobs <n>', `worker threads (1–64; default: CPU count, here ${availableParallelism()})`, numberIn('--jobs', 1, 64, { integer: true }))
+    .option('-o, --out <file>', 'write the report to FILE: .csv (one row per file) or .jsonl (one JSON object per line, with warnings)')
+    .option('--force', 'replace --out if it exists')
+    .option('--json', 'print all rows and the summary as one JSON document on stdout')
+    .option('--tone <hz>', 'carrier tone of every recording (Hz, 100–20000; default: found per file)', numberIn('--tone', 100, 20_000))
+    .option('--channel <n>', 'channel to use, from 0 (default: the one with the strongest keyed tone)', numberIn('--channel', 0, 255, { integer: true }))
+    .option('--shape-seconds <s>', 'audio the shape analysis looks at, from the start of each file (s, 1–3600)', numberIn('--shape-seconds', 1, 3600), 60)
+    .option('--no-shape', 'skip the keying-shape analysis (rise time and bandwidth stay empty)')
+    .addHelpText(
+      'after',
+      `
+Verdicts: ok, no signal (nothing keyed found), mask fail (keyed spectrum outside the shape mask), error.
+Exit code: 0 all files read, 1 some file gave an error, 2 bad usage, 130 interrupted.
+
+Examples:
+  keyform batch recordings/
+  keyform batch captures/ --jobs 2 --out report.csv
+  keyform batch q7zkt-*.wav --out report.jsonl --force --no-shape
+`,
+    )
+    .action(async (inputs: string[], o: BatchCliOptions) => {
+      await runBatch(inputs, o, ctx);
     });
+}
+
+async function runBatch(inputs: string[], o: BatchCliOptions, ctx: CommandContext): Promise<void> {
+  const { io } = ctx;
+  const files = collectInputs(inputs);
+  const jobs = Math.min(o.jobs ?? availableParallelism(), files.length);
+  const writer = o.out ? new ReportWriter(o.out, Boolean(o.force)) : null;
+  const { Piscina } = await import('piscina');
+  const pool = new Piscina<BatchTask, BatchRow>({ filename: workerPath(), minThreads: jobs, maxThreads: jobs, idleTimeout: 1000 });
+  const abort = new AbortController();
+  let interrupted = false;
+  const onSigint = (): void => {
+    interrupted = true;
+    abort.abort('interrupted');
+    io.stderr.write('\nkeyform: interrupted: stopping (rows done so far are kept; Ctrl-C again to quit at once)\n');
+  };
+  process.once('SIGINT', onSigint);
+
+  const started = performance.now();
+  const progress = createProgress(io, { label: 'batch', showAfterMs: 0, intervalMs: 200 });
+  const rows: BatchRow[] = [];
+  const nameWidth = Math.min(40, Math.max(12, ...files.map((f) => f.length)));
+  const lines = !o.json;
+  if (lines) io.stdout.write(`${headerLine(nameWidth)}\n`);
+  const options: BatchTask['options'] = { toneHz: o.tone, channel: o.channel, shapeSeconds: o.shapeSeconds, skipShape: !o.shape };
+
+  const record = (row: BatchRow): void => {
+    rows.push(row);
+    writer?.append(row);
+    progress.done();
+    if (lines) io.stdout.write(`${formatRowLine(row, nameWidth)}\n`);
+    const audioS = rows.reduce((s, r) => s + (r.durationS ?? 0), 0);
+    const errors = rows.filter((r) => r.verdict === 'error').length;
+    progress.update(rows.length / files.length, `${rows.length}/${files.length} files${errors ? `, ${errors} errors` : ''}, ${Math.round(audioS)} s of audio`);
+  };
+
+  try {
+    await Promise.all(
+      files.map((path) =>
+        pool.run({ path, options }, { signal: abort.signal }).then(record, (err: unknown) => {
+          if (interrupted) return; // aborted: not a row
+          record({
+            file: path, durationS: null, text: '', wpm: null, toneHz: null, snrDb: null, riseMs: null, occupiedBandwidthHz: null,
+            jitterPct: null, verdict: 'error', error: errorLine(err), warnings: [],
+          });
+        }),
+      ),
+    );
+  } finally {
+    process.removeListener('SIGINT', onSigint);
+    progress.done();
+    await pool.destroy();
+  }
+  writer?.commit();
+
+  const wallS = (performance.now() - started) / 1000;
+  const summary = summarize(rows, files.length, jobs, wallS, interrupted, o.out ?? null);
+  if (o.json) {
+    const order = new Map(files.map((f, i) => [f, i]));
+    const sorted = [...rows].sort((a, b) => order.get(a.file)! - order.get(b.file)!);
+    io.stdout.write(formatJson({ rows: sorted, summary }));
+  }
+  const parts = [`${summary.ok} ok`];
+  if (summary.noSignal) parts.push(`${summary.noSignal} no signal`);
+  if (summary.maskFail) parts.push(`${summary.maskFail} mask fail`);
+  if (summary.errors) parts.push(`${summary.errors} error${summary.errors > 1 ? 's' : ''}`);
+  ctx.warn(
+    `batch: ${summary.done} of ${summary.files} files (${parts.join(', ')}); ${summary.audioS.toFixed(1)} s of audio in ${formatElapsed(wallS * 1000)}` +
+      `${summary.realTimeFactor ? ` (${summary.realTimeFactor}× real time)` : ''} on ${jobs} worker${jobs > 1 ? 's' : ''}` +
+      `${writer ? `; report: ${writer.path} (${writer.rows} rows)` : ''}${interrupted ? '; interrupted' : ''}`,
+  );
+  if (interrupted) ctx.setExitCode(130);
+  else if (summary.errors > 0) ctx.setExitCode(1);
 }

@@ -1,0 +1,214 @@
+/**
+ * Throughput benchmark: how fast keyform reads and decodes long recordings, how much memory it
+ * needs, and how batch work scales over worker threads. Prints a table.
+ *
+ *   npm run bench:throughput                      one hour at 48 kHz and at 8 kHz (the issue's case)
+ *   npx tsx bench/throughput.ts --minutes 10      shorter, for a quick look
+ *   options: --minutes M  --batch-files N  --batch-minutes M  --dir DIR  --keep
+ *
+ * Test audio (deterministic, seeded): traffic of 20–25 WPM between invented stations, 5 ms raised-cosine
+ * edges, 700 Hz tone, white Gaussian noise at +5 dB SNR (key-down carrier power over noise power in
+ * 2500 Hz, as noiseSigmaForSnr defines it), written to disk message by message (never the whole hour in memory).
+ *
+ * Each measurement runs in a child process so its peak resident memory (process.resourceUsage().maxRSS)
+ * is its own: "read" = read the file through the streaming path and convert to float (the floor),
+ * "decode" = the same plus the streaming receiver. Batch speed-up runs the built CLI (dist/) with
+ * --jobs 1 and --jobs 2 over the same files.
+ */
+import { spawnSync } from 'node:child_process';
+import { closeSync, existsSync, mkdirSync, openSync, renameSync, rmSync, statSync, writeSync } from 'node:fs';
+import { availableParallelism, tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { addNoise, noiseSigmaForSnr, seededRandom } from '../src/core/signal/noise.js';
+import { synthesizeTone } from '../src/core/signal/synth.js';
+import { planKeying } from '../src/core/timing/plan.js';
+import { loadReceiver } from '../src/cli/analyze-recording.js';
+import { openAudio } from '../src/io/audio-source.js';
+
+const SNR_DB = 5;
+const LEVEL_DB = -20; // low enough that +5 dB SNR noise at 48 kHz stays far from clipping in 16 bits
+const TONE_HZ = 700;
+const SEED = 7;
+const WORDS = ['CQ', 'DE', 'Q7ZKT', 'Q3ABC', 'Q9XYZ', 'Q5MLP', 'TEST', 'BEACON', 'RST', '599', '579', 'QTH', 'JO01', 'NAME', 'ANN', 'BOB', 'TNX', 'FB', 'PSE', 'K', 'KN', '73', 'WX', 'CLOUDY', 'RIG', 'QRP', '5W', 'ANT', 'DIPOLE', 'HR', 'UR', 'OM', '<BT>', '<AR>'];
+
+// ---------------------------------------------------------------- child mode
+if (process.argv[2] === '--child') {
+  await child(process.argv[3] as 'read' | 'decode', process.argv[4]!);
+  process.exit(0);
+}
+
+async function child(mode: 'read' | 'decode', path: string): Promise<void> {
+  const receiver = mode === 'decode' ? await loadReceiver() : null;
+  if (mode === 'decode' && !receiver) {
+    process.stdout.write(JSON.stringify({ error: 'receiver not built yet' }));
+    return;
+  }
+  const t0 = performance.now();
+  const audio = await openAudio(path, { streamAboveBytes: 0 });
+  const decoder = receiver ? new receiver.StreamDecoder(audio.sampleRate) : null;
+  let frames = 0;
+  let checksum = 0;
+  for await (const [ch] of audio.chunks()) {
+    frames += ch!.length;
+    if (decoder) decoder.push(ch!);
+    else checksum += ch![0]!; // touch the data so the read cannot be optimised away
+  }
+  const result = decoder?.finish();
+  const wallS = (performance.now() - t0) / 1000;
+  process.stdout.write(
+    JSON.stringify({
+      audioS: frames / audio.sampleRate,
+      wallS,
+      maxRssMB: process.resourceUsage().maxRSS / 1024,
+      characters: result ? result.text.replace(/\s/g, '').length : null,
+      wpm: result?.wpm ?? null,
+      snrDb: result?.snrDb ?? null,
+      checksum,
+    }),
+  );
+}
+
+// ---------------------------------------------------------------- generation
+function arg(name: string, fallback: number): number {
+  const i = process.argv.indexOf(name);
+  return i > 0 ? Number(process.argv[i + 1]) : fallback;
+}
+
+/** Writes `seconds` of seeded traffic as a 16-bit mono WAV, message by message. Returns characters sent. */
+function generate(path: string, sampleRate: number, seconds: number, seed: number): number {
+  const totalFrames = Math.round(seconds * sampleRate);
+  const header = Buffer.alloc(44);
+  header.write('RIFF', 0, 'ascii');
+  header.writeUInt32LE(36 + totalFrames * 2, 4);
+  header.write('WAVEfmt ', 8, 'ascii');
+  header.writeUInt32LE(16, 16);
+  header.writeUInt16LE(1, 20);
+  header.writeUInt16LE(1, 22);
+  header.writeUInt32LE(sampleRate, 24);
+  header.writeUInt32LE(sampleRate * 2, 28);
+  header.writeUInt16LE(2, 32);
+  header.writeUInt16LE(16, 34);
+  header.write('data', 36, 'ascii');
+  header.writeUInt32LE(totalFrames * 2, 40);
+  const tmp = `${path}.tmp`;
+  const fd = openSync(tmp, 'w');
+  writeSync(fd, header);
+  const random = seededRandom(seed);
+  const amplitude = 10 ** (LEVEL_DB / 20);
+  const sigma = noiseSigmaForSnr(amplitude, sampleRate, SNR_DB);
+  let written = 0;
+  let characters = 0;
+  for (let m = 0; written < totalFrames; m++) {
+    const words = Array.from({ length: 6 + Math.floor(random() * 8) }, () => WORDS[Math.floor(random() * WORDS.length)]!);
+    const wpm = 20 + Math.round(random() * 10) / 2; // 20…25 WPM in 0.5 steps
+    const plan = planKeying(words.join(' '), { wpm });
+    characters += plan.characterCount;
+    const tone = synthesizeTone({
+      marks: plan.marks, sampleRate, toneHz: TONE_HZ, levelDb: LEVEL_DB, edge: 'raised-cosine', riseMs: 5,
+      padMs: 500 + Math.floor(random() * 1500), // 0.5–2 s of noise only between messages
+    });
+    const samples = addNoise(tone.samples, sigma, seed * 100_003 + m);
+    const n = Math.min(samples.length, totalFrames - written);
+    const pcm = new Int16Array(n);
+    for (let i = 0; i < n; i++) pcm[i] = Math.round(Math.max(-1, Math.min(1, samples[i]!)) * 32767);
+    writeSync(fd, new Uint8Array(pcm.buffer));
+    written += n;
+  }
+  closeSync(fd);
+  renameSync(tmp, path);
+  return characters;
+}
+
+interface ChildResult { audioS: number; wallS: number; maxRssMB: number; characters: number | null; wpm: number | null; snrDb: number | null; error?: string }
+
+function runChild(mode: 'read' | 'decode', path: string): ChildResult {
+  const self = fileURLToPath(import.meta.url);
+  const r = spawnSync(process.execPath, [...process.execArgv, self, '--child', mode, path], { encoding: 'utf8', maxBuffer: 1 << 20 });
+  if (r.status !== 0) throw new Error(`child ${mode} failed: ${r.stderr}`);
+  return JSON.parse(r.stdout) as ChildResult;
+}
+
+function timeCli(args: string[]): { wallS: number; status: number | null; stderr: string } {
+  const bin = fileURLToPath(new URL('../dist/cli/bin.js', import.meta.url));
+  const t0 = performance.now();
+  const r = spawnSync(process.execPath, [bin, ...args], { encoding: 'utf8', maxBuffer: 16 << 20 });
+  return { wallS: (performance.now() - t0) / 1000, status: r.status, stderr: r.stderr };
+}
+
+// ---------------------------------------------------------------- main
+const minutes = arg('--minutes', 60);
+const batchFiles = arg('--batch-files', 6);
+const batchMinutes = arg('--batch-minutes', 10);
+const dir = process.argv.includes('--dir') ? process.argv[process.argv.indexOf('--dir') + 1]! : join(tmpdir(), 'keyform-throughput');
+mkdirSync(dir, { recursive: true });
+
+const lines: string[] = [];
+const say = (s: string): void => {
+  process.stdout.write(`${s}\n`);
+  lines.push(s);
+};
+say(`keyform throughput benchmark — node ${process.version}, ${availableParallelism()} CPUs, files in ${dir}`);
+say(`audio: ${minutes} min of 20–25 WPM traffic, 700 Hz, 5 ms raised-cosine edges, +${SNR_DB} dB SNR (key-down carrier / noise in 2500 Hz), 16-bit mono WAV, seed ${SEED}`);
+const receiverBuilt = (await loadReceiver()) !== null;
+if (!receiverBuilt) say('note: the receiver (src/core/receive) is not built yet: only the read floor is measured');
+
+const rows: string[][] = [];
+for (const sampleRate of [48_000, 8000]) {
+  const path = join(dir, `traffic-${sampleRate}-${minutes}min-seed${SEED}.wav`);
+  if (!existsSync(path)) {
+    const t0 = performance.now();
+    const chars = generate(path, sampleRate, minutes * 60, SEED);
+    process.stderr.write(`generated ${path} (${chars} characters, ${(statSync(path).size / 1e6).toFixed(0)} MB) in ${((performance.now() - t0) / 1000).toFixed(1)} s\n`);
+  }
+  const floor = runChild('read', path);
+  const decode = receiverBuilt ? runChild('decode', path) : null;
+  const rtf = (r: ChildResult | null): string => (r && !r.error ? Math.round(r.audioS / r.wallS).toLocaleString('en-US') : '–');
+  rows.push([
+    `${sampleRate / 1000} kHz`,
+    `${(floor.audioS / 60).toFixed(0)} min`,
+    `${(statSync(path).size / 1e6).toFixed(0)} MB`,
+    `${floor.wallS.toFixed(2)} s`,
+    `${rtf(floor)}×`,
+    decode ? `${decode.wallS.toFixed(2)} s` : '–',
+    decode ? `${rtf(decode)}×` : '–',
+    decode ? `${(decode.wallS / floor.wallS).toFixed(1)}×` : '–',
+    `${(decode ?? floor).maxRssMB.toFixed(0)} MB`,
+    decode?.wpm != null ? `${decode.wpm.toFixed(1)} / ${decode.snrDb?.toFixed(1) ?? '–'} dB` : '–',
+  ]);
+}
+function printTable(head: string[], rows: string[][]): void {
+  const widths = head.map((h, i) => Math.max(h.length, ...rows.map((r) => r[i]!.length)));
+  const line = (r: string[]): string => `| ${r.map((c, i) => c.padEnd(widths[i]!)).join(' | ')} |`;
+  say(line(head));
+  say(`|${widths.map((w) => '-'.repeat(w + 2)).join('|')}|`);
+  for (const r of rows) say(line(r));
+}
+const head = ['audio', 'length', 'file', 'read+convert', 'floor RTF', 'decode', 'decode RTF', 'decode/floor', 'peak RSS', 'wpm / SNR est.'];
+say('');
+say('Streaming read and decode, one core (RTF = audio seconds per wall second; peak RSS of the decoding process)');
+printTable(head, rows);
+
+// Batch speed-up: the built CLI over N files on 1 and on 2 worker threads.
+const bin = fileURLToPath(new URL('../dist/cli/bin.js', import.meta.url));
+say('');
+if (!existsSync(bin) || !existsSync(fileURLToPath(new URL('../dist/cli/batch-worker.js', import.meta.url)))) {
+  say('batch: dist/ is not built (npm run build): skipped');
+} else {
+  const batchDir = join(dir, `batch-${batchFiles}x${batchMinutes}min`);
+  mkdirSync(batchDir, { recursive: true });
+  for (let i = 0; i < batchFiles; i++) {
+    const p = join(batchDir, `q-traffic-${String(i + 1).padStart(2, '0')}.wav`);
+    if (!existsSync(p)) generate(p, 8000, batchMinutes * 60, SEED + 1 + i);
+  }
+  const one = timeCli(['batch', batchDir, '--jobs', '1', '--json']);
+  const two = timeCli(['batch', batchDir, '--jobs', '2', '--json']);
+  say(`Batch: ${batchFiles} files × ${batchMinutes} min at 8 kHz (decode + timing + shape per file), built CLI`);
+  printTable(['workers', 'wall time', 'speed-up'], [
+    ['1', `${one.wallS.toFixed(2)} s`, '1.00×'],
+    ['2', `${two.wallS.toFixed(2)} s`, `${(one.wallS / two.wallS).toFixed(2)}×`],
+  ]);
+  if (one.status !== 0 || two.status !== 0) say(`(batch exit codes ${one.status} and ${two.status}: ${(one.stderr + two.stderr).trim().split('\n').slice(-2).join(' / ')})`);
+}
+if (!process.argv.includes('--keep')) rmSync(dir, { recursive: true, force: true });
+else say(`(files kept in ${dir})`);

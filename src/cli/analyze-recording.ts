@@ -1,0 +1,242 @@
+/**
+ * One recording in, one report row out: decode (receiver), timing statistics and keying shape,
+ * read through openAudio so long files stream with bounded memory. Used by `batch` (in worker
+ * threads) and by the throughput benchmark. Never throws for a bad file: the error goes in the row.
+ */
+import { InputError } from '../core/errors.js';
+import type { Interval } from '../core/timeline.js';
+import { openAudio, type OpenAudioOptions } from '../io/audio-source.js';
+
+/** One line of a batch report. Numbers are null where they could not be measured. */
+export interface BatchRow {
+  /** The path as given. */
+  file: string;
+  /** Length of the audio [s]. */
+  durationS: number | null;
+  /** Decoded text. */
+  text: string;
+  /** Character speed [wpm, PARIS]. */
+  wpm: number | null;
+  /** Carrier tone in the recording [Hz]. */
+  toneHz: number | null;
+  /** Key-down carrier power over noise in 2500 Hz [dB] (the receiver's estimate). */
+  snrDb: number | null;
+  /** Median 10–90 % rise time of the marks [ms] (shape analysis). */
+  riseMs: number | null;
+  /** Occupied (99 % power) bandwidth per ITU-R SM.328 [Hz] (shape analysis). */
+  occupiedBandwidthHz: number | null;
+  /** Timing jitter [% of a unit] (timing report). */
+  jitterPct: number | null;
+  /** `ok`, `no signal`, `mask fail` (the keyed spectrum exceeds the shape mask) or `error`. */
+  verdict: BatchVerdict;
+  /** One-line reason when verdict is `error`. */
+  error: string | null;
+  /** Receiver, timing and shape warnings, one line each. */
+  warnings: string[];
+}
+
+export type BatchVerdict = 'ok' | 'no signal' | 'mask fail' | 'error';
+
+/** Column order of the report files. */
+export const BATCH_COLUMNS: readonly (keyof BatchRow)[] = [
+  'file', 'durationS', 'text', 'wpm', 'toneHz', 'snrDb', 'riseMs', 'occupiedBandwidthHz', 'jitterPct', 'verdict', 'error',
+];
+
+export interface AnalyzeOptions extends Pick<OpenAudioOptions, 'raw' | 'rate' | 'channels' | 'streamAboveBytes' | 'stdin'> {
+  /** Carrier tone [Hz]; found automatically when omitted. */
+  toneHz?: number;
+  /** Channel to use (0-based); by default the one with the strongest keyed tone. */
+  channel?: number;
+  /** How much audio the shape analysis looks at, from the start [s] (default 60): it keeps samples, so it is bounded. */
+  shapeSeconds?: number;
+  /** Skip the shape analysis (faster; rise and bandwidth stay empty). */
+  skipShape?: boolean;
+  /** Progress through the file, 0…1. */
+  onProgress?: (fraction: number) => void;
+}
+
+// The receiver, timing and shape modules, as far as this file relies on them (their contracts).
+interface DecodeResultLike {
+  text: string;
+  wpm: number | null;
+  unitMs: number | null;
+  marks: Interval[];
+  toneHz: number | null;
+  snrDb: number | null;
+  warnings: string[];
+  durationMs: number;
+}
+interface ReceiverModule {
+  StreamDecoder: new (sampleRate: number, options?: { toneHz?: number; onProgress?: (f: number) => void }) => {
+    push(chunk: Float32Array): void;
+    finish(): DecodeResultLike;
+  };
+  pickChannel(channels: Float32Array[], sampleRate: number): { index: number; reason: string };
+}
+interface ShapeModule {
+  measureShape(samples: Float32Array, sampleRate: number, options?: { toneHz?: number }): {
+    riseMs?: { median: number | null } | null;
+    occupiedBandwidthHz?: number | null;
+    mask?: { pass: boolean } | null;
+    warnings?: string[];
+  };
+}
+interface TimingModule {
+  measureTiming(timeline: { marks: readonly Interval[] }): { jitterPct: number | null; warnings: string[] };
+}
+
+const loaded = new Map<string, Promise<unknown>>();
+/** Loads a sibling core module if it exists in this build (the receiver and shape analysis land separately). */
+async function optional<T>(specifier: string): Promise<T | null> {
+  if (!loaded.has(specifier)) {
+    loaded.set(
+      specifier,
+      import(specifier).catch((err: NodeJS.ErrnoException) => {
+        if (err?.code === 'ERR_MODULE_NOT_FOUND' || /Cannot find module|Failed to load url|does not provide/.test(String(err?.message))) return null;
+        throw err;
+      }),
+    );
+  }
+  return (await loaded.get(specifier)) as T | null;
+}
+
+export const loadReceiver = (): Promise<ReceiverModule | null> => optional<ReceiverModule>('../core/receive/index.js');
+const loadShape = (): Promise<ShapeModule | null> => optional<ShapeModule>('../core/measure/shape.js');
+const loadTiming = (): Promise<TimingModule | null> => optional<TimingModule>('../core/measure/timing.js');
+
+/** Seconds of audio buffered to choose the channel of a multichannel recording. */
+const PICK_SECONDS = 10;
+
+function emptyRow(file: string): BatchRow {
+  return {
+    file, durationS: null, text: '', wpm: null, toneHz: null, snrDb: null, riseMs: null, occupiedBandwidthHz: null,
+    jitterPct: null, verdict: 'error', error: null, warnings: [],
+  };
+}
+
+function round(x: number | null | undefined, digits: number): number | null {
+  if (x === null || x === undefined || !Number.isFinite(x)) return null;
+  const f = 10 ** digits;
+  return Math.round(x * f) / f;
+}
+
+/** Makes the one-line message of a failure: InputErrors as they are, anything else marked internal. */
+export function errorLine(err: unknown): string {
+  const msg = err instanceof Error ? err.message : String(err);
+  const line = msg.split('\n')[0]!;
+  return err instanceof InputError ? line : `internal error: ${line}`;
+}
+
+/**
+ * Analyses one recording: decode, timing and shape. Long files stream through the receiver in
+ * chunks; the shape analysis sees the first `shapeSeconds` of the chosen channel.
+ * @param path - WAV file (or raw PCM with `raw`/`rate`), or `-` with `stdin`.
+ * @returns A row; a file that cannot be read gives `verdict: 'error'` and the one-line reason.
+ * @example (await analyzeRecording('recordings/beacon-after-fix.wav')).text //=> 'VVV Q7ZKT/B …'
+ */
+export async function analyzeRecording(path: string, options: AnalyzeOptions = {}): Promise<BatchRow> {
+  const row = emptyRow(path);
+  try {
+    await analyzeInto(row, path, options);
+    row.verdict = row.text.trim() === '' ? 'no signal' : row.verdict === 'mask fail' ? 'mask fail' : 'ok';
+  } catch (err) {
+    row.verdict = 'error';
+    row.error = errorLine(err);
+  }
+  return row;
+}
+
+async function analyzeInto(row: BatchRow, path: string, options: AnalyzeOptions): Promise<void> {
+  const audio = await openAudio(path, options);
+  const receiver = await loadReceiver();
+  if (!receiver) throw new InputError('the receiver is not part of this build');
+  const { sampleRate, channelCount } = audio;
+  if (options.channel !== undefined && (options.channel < 0 || options.channel >= channelCount)) {
+    throw new InputError(`${audio.name}: channel ${options.channel} does not exist (the file has ${channelCount}, numbered from 0)`);
+  }
+  const totalFrames = audio.durationMs !== null ? (audio.durationMs / 1000) * sampleRate : null;
+  const shapeFrames = options.skipShape ? 0 : Math.round((options.shapeSeconds ?? 60) * sampleRate);
+  const shapeBuffer = new Float32Array(totalFrames !== null ? Math.min(shapeFrames, Math.ceil(totalFrames)) : shapeFrames);
+  let shapeFilled = 0;
+
+  let channel = options.channel ?? (channelCount === 1 ? 0 : -1);
+  const held: Float32Array[][] = [];
+  let heldFrames = 0;
+  let decoder: InstanceType<ReceiverModule['StreamDecoder']> | null = null;
+  let framesDone = 0;
+
+  const feed = (samples: Float32Array): void => {
+    if (!decoder) decoder = new receiver.StreamDecoder(sampleRate, { toneHz: options.toneHz });
+    decoder.push(samples);
+    if (shapeFilled < shapeBuffer.length) {
+      const n = Math.min(samples.length, shapeBuffer.length - shapeFilled);
+      shapeBuffer.set(samples.subarray(0, n), shapeFilled);
+      shapeFilled += n;
+    }
+    framesDone += samples.length;
+    if (options.onProgress && totalFrames) options.onProgress(Math.min(1, framesDone / totalFrames));
+  };
+  const choose = (): void => {
+    // Pick the channel with the strongest keyed tone from the first seconds, then stream only that one.
+    const joined = Array.from({ length: channelCount }, (_, c) => {
+      const a = new Float32Array(heldFrames);
+      let o = 0;
+      for (const h of held) {
+        a.set(h[c]!, o);
+        o += h[c]!.length;
+      }
+      return a;
+    });
+    const pick = receiver.pickChannel(joined, sampleRate);
+    channel = pick.index;
+    row.warnings.push(`${audio.name}: using channel ${channel} of ${channelCount} (${pick.reason})`);
+    feed(joined[channel]!);
+    held.length = 0;
+  };
+
+  for await (const chunk of audio.chunks()) {
+    if (channel >= 0) {
+      feed(chunk[channel]!);
+      continue;
+    }
+    held.push(chunk);
+    heldFrames += chunk[0]!.length;
+    if (heldFrames >= PICK_SECONDS * sampleRate) choose();
+  }
+  if (channel < 0) choose();
+  row.warnings.push(...audio.warnings);
+  if (!decoder) throw new InputError(`${audio.name}: no audio samples`);
+  const result = (decoder as InstanceType<ReceiverModule['StreamDecoder']>).finish();
+  row.durationS = round((audio.durationMs ?? result.durationMs) / 1000, 3);
+  row.text = result.text;
+  row.wpm = round(result.wpm, 1);
+  row.toneHz = round(result.toneHz, 1);
+  row.snrDb = round(result.snrDb, 1);
+  row.warnings.push(...result.warnings);
+
+  if (result.marks.length >= 2) {
+    const timing = await loadTiming();
+    if (timing) {
+      try {
+        const report = timing.measureTiming(result);
+        row.jitterPct = round(report.jitterPct, 1);
+      } catch (err) {
+        row.warnings.push(`timing: ${errorLine(err)}`);
+      }
+    }
+  }
+  if (shapeFilled > 0 && result.marks.length > 0) {
+    const shape = await loadShape();
+    if (shape) {
+      try {
+        const report = shape.measureShape(shapeBuffer.subarray(0, shapeFilled), sampleRate, { toneHz: result.toneHz ?? options.toneHz });
+        row.riseMs = round(report.riseMs?.median, 2);
+        row.occupiedBandwidthHz = round(report.occupiedBandwidthHz, 0);
+        if (report.mask && report.mask.pass === false) row.verdict = 'mask fail';
+        row.warnings.push(...(report.warnings ?? []).map((w) => `shape: ${w}`));
+      } catch (err) {
+        row.warnings.push(`shape: ${errorLine(err)}`);
+      }
+    }
+  }
+}
