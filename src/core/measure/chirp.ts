@@ -1,0 +1,84 @@
+/**
+ * Chirp: how far the tone is pulled from its settled frequency during the first milliseconds of each
+ * mark, from the instantaneous phase of the analytic signal (complex baseband).
+ */
+import { checkRange } from '../errors.js';
+import type { Baseband } from './shape-analytic.js';
+import type { MarkShape } from './edges.js';
+
+/**
+ * Mean frequency [Hz, relative to the baseband's 0 Hz] over samples [i0, i1): the angle of
+ * Σ z[n]·conj(z[n−1]), which weights each phase step by the signal's power.
+ */
+export function meanFrequencyHz(bb: Baseband, sampleRate: number, i0: number, i1: number): number | null {
+  const { re, im } = bb;
+  let sr = 0;
+  let si = 0;
+  const a = Math.max(1, Math.floor(i0));
+  const b = Math.min(re.length, Math.ceil(i1));
+  for (let n = a; n < b; n++) {
+    // z[n] · conj(z[n−1])
+    sr += re[n]! * re[n - 1]! + im[n]! * im[n - 1]!;
+    si += im[n]! * re[n - 1]! - re[n]! * im[n - 1]!;
+  }
+  if (sr === 0 && si === 0) return null;
+  return (Math.atan2(si, sr) * sampleRate) / (2 * Math.PI);
+}
+
+export interface ChirpOptions {
+  /** How long after the 50 % key-down point to look [ms], 0.5…200; default 10. */
+  windowMs?: number;
+  /** Length of each frequency average [ms], 0.1…10; default 0.5. */
+  averageMs?: number;
+}
+
+export interface MarkChirp {
+  /** 50 % key-down time [ms]. */
+  startMs: number;
+  /** Settled tone of this mark, relative to the analysis tone [Hz]. */
+  settledOffsetHz: number;
+  /** Largest deviation from the settled tone within the window, with its sign [Hz]. */
+  chirpHz: number;
+  /** When that largest deviation happened, after the 50 % key-down point [ms]. */
+  atMs: number;
+}
+
+/**
+ * Measures each mark's chirp: the settled tone is the power-weighted mean frequency over the
+ * mark's later part; the chirp is the largest deviation from it among `averageMs` averages centred
+ * every averageMs/2 from the 50 % key-down point to `windowMs` after it.
+ * @param bb - Complex baseband of the recording (see complexBaseband).
+ * @param sampleRate - Sample rate [Hz].
+ * @param marks - Marks from measureEdges; only marks with a measured rise are used.
+ * @returns One entry per usable mark.
+ * @example measureChirp(bb, 48000, edges.marks)[0].chirpHz //=> ≈ 30 for a 30 Hz pull at key-down
+ */
+export function measureChirp(bb: Baseband, sampleRate: number, marks: readonly MarkShape[], options: ChirpOptions = {}): MarkChirp[] {
+  const windowMs = checkRange('chirp window', options.windowMs ?? 10, 0.5, 200, 'ms');
+  const averageMs = checkRange('chirp average', options.averageMs ?? 0.5, 0.1, 10, 'ms');
+  const perMs = sampleRate / 1000;
+  const out: MarkChirp[] = [];
+  for (const m of marks) {
+    if (!m.rise || !m.fall) continue;
+    const a = m.rise.at50Ms;
+    const b = m.fall.at50Ms;
+    const D = b - a;
+    const settled = meanFrequencyHz(bb, sampleRate, (a + 0.5 * D) * perMs, (b - 0.2 * D) * perMs);
+    if (settled === null) continue;
+    let best = 0;
+    let atMs = 0;
+    const end = Math.min(windowMs, 0.5 * D);
+    for (let t = 0; t <= end + 1e-9; t += averageMs / 2) {
+      const c = (a + t) * perMs;
+      const f = meanFrequencyHz(bb, sampleRate, c - (averageMs / 2) * perMs, c + (averageMs / 2) * perMs);
+      if (f === null) continue;
+      const d = f - settled;
+      if (Math.abs(d) > Math.abs(best)) {
+        best = d;
+        atMs = t;
+      }
+    }
+    out.push({ startMs: a, settledOffsetHz: settled, chirpHz: best, atMs });
+  }
+  return out;
+}

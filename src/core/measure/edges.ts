@@ -1,0 +1,327 @@
+/**
+ * Rise and fall times (10–90 % of each mark's settled level, Federal Standard 1037C's definition of
+ * rise time) measured on a wide keying envelope, one mark at a time.
+ */
+import { checkRange } from '../errors.js';
+
+/** One measured edge. Times on the recording's clock [ms]. */
+export interface EdgeMeasurement {
+  /** Time of the 50 % crossing [ms from the first sample]. */
+  at50Ms: number;
+  /** 10 → 90 % time [ms]. */
+  rise10to90Ms: number;
+  /** Crossing times of 5, 10, 30, 50, 70, 90 and 95 % relative to the 10 % crossing, going up in level [ms]. */
+  levelTimesMs: { p5: number; p10: number; p30: number; p50: number; p70: number; p90: number; p95: number };
+}
+
+/** One key-down as seen in the envelope. */
+export interface MarkShape {
+  /** 50 % key-down and key-up times [ms from the first sample]. */
+  startMs: number;
+  endMs: number;
+  /** Settled (plateau) level, in envelope units. */
+  settledLevel: number;
+  /** Level before the mark (noise or carrier leak), in envelope units. */
+  baseLevel: number;
+  /** Plateau noise: standard deviation over the settled part / (settled − base). */
+  plateauNoise: number;
+  /** Peak above the settled level during the first half of the mark [%]. */
+  overshootPct: number;
+  rise: EdgeMeasurement | null;
+  fall: EdgeMeasurement | null;
+  /** Why this mark's edges were not measured, if they were not. */
+  problem: string | null;
+}
+
+export interface EdgeAnalysis {
+  marks: MarkShape[];
+  /** Level that separated key-down from key-up (50 % between the 5th and 95th percentile). */
+  thresholdLevel: number;
+  /** 95th-percentile envelope level (key-down) and 5th-percentile level (key-up). */
+  onLevel: number;
+  offLevel: number;
+  warnings: string[];
+}
+
+function percentile(sorted: ArrayLike<number>, q: number): number {
+  if (sorted.length === 0) return NaN;
+  const x = q * (sorted.length - 1);
+  const i = Math.floor(x);
+  const f = x - i;
+  const a = sorted[i]!;
+  const b = sorted[Math.min(sorted.length - 1, i + 1)]!;
+  return a + (b - a) * f;
+}
+
+/** Median of env[i0, i1). */
+function medianOf(env: Float32Array, i0: number, i1: number): number {
+  const a = Array.from(env.subarray(Math.max(0, i0), Math.max(i0 + 1, Math.min(env.length, i1)))).sort((x, y) => x - y);
+  return percentile(a, 0.5);
+}
+
+function stdOf(env: Float32Array, i0: number, i1: number): number {
+  let s = 0;
+  let s2 = 0;
+  let n = 0;
+  for (let i = Math.max(0, i0); i < Math.min(env.length, i1); i++) {
+    s += env[i]!;
+    s2 += env[i]! * env[i]!;
+    n++;
+  }
+  if (n < 2) return 0;
+  const m = s / n;
+  return Math.sqrt(Math.max(0, s2 / n - m * m));
+}
+
+/** Sorted copy of a numeric list. */
+export function sortedCopy(values: readonly number[]): number[] {
+  return [...values].sort((a, b) => a - b);
+}
+
+/** Median, 10th and 90th percentile of a list (nulls when empty). */
+export function spreadOf(values: readonly number[]): { median: number | null; p10: number | null; p90: number | null } {
+  if (values.length === 0) return { median: null, p10: null, p90: null };
+  const s = sortedCopy(values);
+  return { median: percentile(s, 0.5), p10: percentile(s, 0.1), p90: percentile(s, 0.9) };
+}
+
+/**
+ * Time [fractional sample index] where the envelope crosses `level`, searching from `from` towards
+ * `limit` (either direction) for the first sample on the far side of the level.
+ */
+function crossing(env: Float32Array, level: number, from: number, limit: number, above: boolean): number | null {
+  const dir = limit >= from ? 1 : -1;
+  const beyond = (v: number): boolean => (above ? v >= level : v < level);
+  let inside: number; // last sample not beyond the level
+  let out: number; // first sample beyond it
+  if (beyond(env[from]!)) {
+    // Already past the level: step back (away from `limit`) to where it was crossed.
+    let j = from;
+    for (let n = 0; n < 100_000; n++) {
+      const k = j - dir;
+      if (k < 0 || k >= env.length || !beyond(env[k]!)) break;
+      j = k;
+    }
+    out = j;
+    inside = j - dir;
+    if (inside < 0 || inside >= env.length) return out;
+  } else {
+    let i = from;
+    for (;;) {
+      const k = i + dir;
+      if (dir > 0 ? k > limit : k < limit) return null;
+      if (beyond(env[k]!)) break;
+      i = k;
+    }
+    inside = i;
+    out = i + dir;
+  }
+  const a = env[inside]!;
+  const v = env[out]!;
+  const f = a === v ? 0 : (level - a) / (v - a);
+  return inside + dir * f;
+}
+
+const LEVELS = [0.05, 0.1, 0.3, 0.5, 0.7, 0.9, 0.95] as const;
+
+/**
+ * Measures one edge around the 50 % index `i50`. For a rising edge the levels above 50 % are found
+ * searching forward (first time the level is reached) and those below searching backward.
+ */
+function measureEdge(
+  env: Float32Array,
+  i50: number,
+  base: number,
+  settled: number,
+  rising: boolean,
+  backLimit: number,
+  fwdLimit: number,
+  msPerSample: number,
+): EdgeMeasurement | null {
+  const times: number[] = [];
+  for (const p of LEVELS) {
+    const level = base + p * (settled - base);
+    let t: number | null;
+    if (rising) t = p >= 0.5 ? crossing(env, level, i50, fwdLimit, true) : crossing(env, level, i50, backLimit, false);
+    else t = p >= 0.5 ? crossing(env, level, i50, backLimit, true) : crossing(env, level, i50, fwdLimit, false);
+    if (t === null) return null;
+    times.push(t);
+  }
+  // For a falling edge time runs the other way as the level goes up.
+  const sign = rising ? 1 : -1;
+  const t10 = times[1]!;
+  const rel = times.map((t) => sign * (t - t10) * msPerSample);
+  return {
+    at50Ms: times[3]! * msPerSample,
+    rise10to90Ms: rel[5]!,
+    levelTimesMs: { p5: rel[0]!, p10: 0, p30: rel[2]!, p50: rel[3]!, p70: rel[4]!, p90: rel[5]!, p95: rel[6]! },
+  };
+}
+
+export interface EdgeOptions {
+  /** Smallest key-down to consider [ms], 0.1…1000; shorter bumps are ignored. Default 2 ms. */
+  minMarkMs?: number;
+}
+
+/**
+ * Finds the marks in a wide envelope and measures each one's rise and fall (10–90 % of the step from
+ * the level before the mark to the mark's settled level), overshoot and plateau noise.
+ * @param env - Envelope (non-negative), one value per sample.
+ * @param sampleRate - Sample rate [Hz], 1000…384000.
+ * @returns Marks with their edges, and warnings for marks too short or too noisy to measure.
+ * @example measureEdges(envelopeOfFiveMsRaisedCosineDot, 48000).marks[0].rise.rise10to90Ms //=> ≈ 5
+ */
+export function measureEdges(env: Float32Array, sampleRate: number, options: EdgeOptions = {}): EdgeAnalysis {
+  checkRange('sample rate', sampleRate, 1000, 384_000, 'Hz');
+  const minMarkMs = checkRange('shortest mark', options.minMarkMs ?? 2, 0.1, 1000, 'ms');
+  const msPerSample = 1000 / sampleRate;
+  const warnings: string[] = [];
+  const N = env.length;
+  // Levels from a decimated sorted copy (bounded cost on long recordings).
+  const stride = Math.max(1, Math.floor(N / 200_000));
+  const pick: number[] = [];
+  for (let i = 0; i < N; i += stride) pick.push(env[i]!);
+  pick.sort((a, b) => a - b);
+  const onLevel = percentile(pick, 0.95);
+  const offLevel = percentile(pick, 0.05);
+  const threshold = offLevel + 0.5 * (onLevel - offLevel);
+  const hyst = 0.1 * (onLevel - offLevel);
+  const result: EdgeAnalysis = { marks: [], thresholdLevel: threshold, onLevel, offLevel, warnings };
+  if (!(onLevel > 0) || onLevel < 3 * offLevel) {
+    warnings.push('no clear key-down: the signal is too weak or too noisy to find marks (on/off levels differ by less than 10 dB)');
+    return result;
+  }
+
+  // Key-down runs with hysteresis; the recorded boundaries are the 50 % threshold crossings.
+  const runs: Array<[number, number]> = [];
+  let down = false;
+  let start = 0;
+  for (let i = 0; i < N; i++) {
+    const v = env[i]!;
+    if (!down && v >= threshold + hyst) {
+      down = true;
+      let j = i;
+      while (j > 0 && env[j - 1]! >= threshold) j--;
+      start = j;
+    } else if (down && v < threshold - hyst) {
+      down = false;
+      let j = i;
+      while (j > start && env[j - 1]! < threshold) j--;
+      runs.push([start, j]);
+    }
+  }
+  if (down) warnings.push('the recording ends during a mark; that mark is left out');
+  const minLen = minMarkMs / msPerSample;
+  const kept = runs.filter(([a, b]) => b - a >= minLen);
+  if (kept.length < runs.length) warnings.push(`${runs.length - kept.length} key-down bumps shorter than ${minMarkMs} ms ignored`);
+
+  let tooShort = 0;
+  let tooNoisy = 0;
+  kept.forEach(([a, b], m) => {
+    const prevEnd = m > 0 ? kept[m - 1]![1] : 0;
+    const nextStart = m + 1 < kept.length ? kept[m + 1]![0] : N;
+    const D = b - a;
+    const settled = medianOf(env, a + Math.floor(0.25 * D), b - Math.floor(0.25 * D));
+    const gapBefore = a - prevEnd;
+    const gapAfter = nextStart - b;
+    const baseBefore = m === 0 && gapBefore < 4 ? offLevel : medianOf(env, prevEnd + Math.floor(0.25 * gapBefore), a - Math.floor(0.25 * gapBefore));
+    const baseAfter = gapAfter < 4 ? offLevel : medianOf(env, b + Math.floor(0.25 * gapAfter), nextStart - Math.floor(0.25 * gapAfter));
+    const span = settled - baseBefore;
+    const plateauNoise = span > 0 ? stdOf(env, a + Math.floor(0.25 * D), b - Math.floor(0.25 * D)) / span : Infinity;
+    let peak = 0;
+    for (let i = a; i < a + D / 2; i++) peak = Math.max(peak, env[i]!);
+    const mark: MarkShape = {
+      startMs: a * msPerSample,
+      endMs: b * msPerSample,
+      settledLevel: settled,
+      baseLevel: baseBefore,
+      plateauNoise,
+      overshootPct: settled > 0 ? Math.max(0, (peak / settled - 1) * 100) : 0,
+      rise: null,
+      fall: null,
+      problem: null,
+    };
+    result.marks.push(mark);
+    if (!(span > 0) || plateauNoise > 0.05) {
+      mark.problem = 'too noisy';
+      tooNoisy++;
+      return;
+    }
+    const riseEdge = measureEdge(env, a, baseBefore, settled, true, Math.max(0, prevEnd + Math.floor(gapBefore / 2)), a + Math.floor(D / 2), msPerSample);
+    const fallEdge = measureEdge(env, b - 1, baseAfter, settled, false, b - Math.ceil(D / 2), Math.min(N - 1, b + Math.floor(gapAfter / 2)), msPerSample);
+    // A mark has settled when its rise has reached 90 % before the middle part used for the level.
+    const settledOk =
+      riseEdge !== null &&
+      fallEdge !== null &&
+      riseEdge.at50Ms + (riseEdge.levelTimesMs.p95 - riseEdge.levelTimesMs.p50) <= (a + 0.25 * D) * msPerSample &&
+      fallEdge.at50Ms - (fallEdge.levelTimesMs.p95 - fallEdge.levelTimesMs.p50) >= (b - 0.25 * D) * msPerSample;
+    if (!settledOk) {
+      mark.problem = 'too short to settle';
+      tooShort++;
+      return;
+    }
+    mark.rise = riseEdge;
+    mark.fall = fallEdge;
+  });
+  if (tooShort > 0) warnings.push(`${tooShort} of ${kept.length} marks too short to reach a settled level; their edges are left out`);
+  if (tooNoisy > 0) warnings.push(`${tooNoisy} of ${kept.length} marks too noisy to measure (plateau noise above 5 % of the step)`);
+  return result;
+}
+
+export interface EdgeTraces {
+  /** Time axis relative to each edge's 50 % crossing [ms]. */
+  timeMs: number[];
+  /** Normalised level (0 = base, 1 = settled) of rising edges, one array per edge. */
+  rising: number[][];
+  /** Falling edges, the same way. */
+  falling: number[][];
+}
+
+/**
+ * Samples every measured edge on a common time axis around its 50 % crossing, for a persistence-style
+ * overlay. At most `maxEdges` of each kind, `points` samples each.
+ * @example traceEdges(env, 48000, analysis.marks, 10, 121).timeMs.length //=> 121
+ */
+export function traceEdges(env: Float32Array, sampleRate: number, marks: readonly MarkShape[], halfWindowMs: number, points = 121, maxEdges = 40): EdgeTraces {
+  const timeMs: number[] = [];
+  for (let p = 0; p < points; p++) timeMs.push(-halfWindowMs + (2 * halfWindowMs * p) / (points - 1));
+  const sample = (tMs: number, base: number, settled: number): number => {
+    const x = (tMs * sampleRate) / 1000;
+    const i = Math.floor(x);
+    if (i < 0 || i + 1 >= env.length) return 0;
+    const v = env[i]! + (env[i + 1]! - env[i]!) * (x - i);
+    return (v - base) / (settled - base);
+  };
+  const rising: number[][] = [];
+  const falling: number[][] = [];
+  const measured = marks.filter((m) => m.rise && m.fall);
+  const every = Math.max(1, Math.ceil(measured.length / maxEdges));
+  measured.forEach((m, k) => {
+    if (k % every !== 0) return;
+    rising.push(timeMs.map((t) => round4(sample(m.rise!.at50Ms + t, m.baseLevel, m.settledLevel))));
+    falling.push(timeMs.map((t) => round4(sample(m.fall!.at50Ms + t, m.baseLevel, m.settledLevel))));
+  });
+  return { timeMs: timeMs.map(round4), rising, falling };
+}
+
+function round4(x: number): number {
+  return Math.round(x * 1e4) / 1e4;
+}
+
+export type EdgeKindEstimate = 'hard' | 'exponential' | 'linear' | 'raised-cosine-like' | 'unknown';
+
+/**
+ * Edge kind from the median normalised crossing times. Reference ratios [analytic]:
+ * (t50 − t10)/(t90 − t10) is 0.5 for symmetric edges and 0.268 for a single-pole (RC) edge;
+ * (t95 − t5)/(t90 − t10) is 1.125 for a linear ramp, 1.208 for a raised cosine, 1.340 for RC.
+ * An edge not much slower than the envelope's own response (`resolutionMs`) is called hard.
+ * @example classifyEdge({ rise10to90Ms: 5, asymmetry: 0.5, spread: 1.21 }, 0.2) //=> 'raised-cosine-like'
+ */
+export function classifyEdge(stats: { rise10to90Ms: number | null; asymmetry: number | null; spread: number | null }, resolutionMs: number): EdgeKindEstimate {
+  const { rise10to90Ms, asymmetry, spread } = stats;
+  if (rise10to90Ms === null || asymmetry === null || spread === null) return 'unknown';
+  if (rise10to90Ms < Math.max(0.3, 2 * resolutionMs)) return 'hard';
+  if (asymmetry < 0.38) return 'exponential';
+  if (spread < 1.166) return 'linear';
+  return 'raised-cosine-like';
+}

@@ -1,0 +1,122 @@
+/**
+ * Wide complex envelope of a keyed tone for the shape analysis: the analytic signal (negative
+ * frequencies removed) band-limited to the tone ± a few kHz, mixed down to 0 Hz. Its magnitude is
+ * the keying envelope and its phase step the instantaneous frequency offset.
+ *
+ * The band filter is zero-phase and defined in the frequency domain (flat passband, raised-cosine
+ * tapers); it is applied block by block (overlap-save), so memory is bounded by the block size plus
+ * the output arrays. Deliberately much wider than a receiver's filter: a narrow filter lengthens
+ * the edges it is asked to measure.
+ */
+import FFT from 'fft.js';
+import { checkRange, InputError } from '../errors.js';
+
+export interface BasebandOptions {
+  /** Tone (carrier) frequency [Hz], above 0 and below sampleRate/2. */
+  toneHz: number;
+  /** Half-width of the pass band around the tone [Hz], 100…20000; default 4000. */
+  halfBandHz?: number;
+  /** Called with the fraction done (0…1). */
+  onProgress?: (fraction: number) => void;
+}
+
+export interface Baseband {
+  /** In-phase part, one value per input sample. */
+  re: Float32Array;
+  /** Quadrature part. */
+  im: Float32Array;
+  /** Pass band actually used [Hz, absolute frequencies] (clipped by 0 Hz and sampleRate/2). */
+  passBandHz: [lowHz: number, highHz: number];
+  /** Width of the raised-cosine taper outside the pass band [Hz]. */
+  taperHz: number;
+  /** Smallest one-sided distance from the tone to a pass-band edge [Hz]. */
+  narrowestSideHz: number;
+}
+
+function nextPow2(x: number): number {
+  let p = 1;
+  while (p < x) p *= 2;
+  return p;
+}
+
+/**
+ * Complex baseband of `samples` around `toneHz` (analytic signal mixed down), zero-phase.
+ * @param samples - Real signal.
+ * @param sampleRate - Sample rate [Hz], 1000…384000.
+ * @returns re/im arrays the length of `samples`; |re + j·im| is the envelope in the input's units.
+ * @example complexBaseband(sine700, 48000, { toneHz: 700 }).re[24000] //=> ≈ amplitude of the sine
+ */
+export function complexBaseband(samples: Float32Array, sampleRate: number, options: BasebandOptions): Baseband {
+  checkRange('sample rate', sampleRate, 1000, 384_000, 'Hz');
+  const toneHz = options.toneHz;
+  if (!(toneHz > 0 && toneHz < sampleRate / 2)) {
+    throw new InputError(`tone must be above 0 and below sampleRate/2 = ${sampleRate / 2} Hz (got ${toneHz})`);
+  }
+  const halfBandHz = checkRange('envelope half band', options.halfBandHz ?? 4000, 100, 20_000, 'Hz');
+  const nyq = sampleRate / 2;
+  const taperHz = Math.max(10, Math.min(200, 0.25 * toneHz, 0.25 * (nyq - toneHz)));
+  const lowHz = Math.max(toneHz - halfBandHz, taperHz);
+  const highHz = Math.min(toneHz + halfBandHz, nyq - taperHz);
+  const N0 = samples.length;
+  const re = new Float32Array(N0);
+  const im = new Float32Array(N0);
+  const result: Baseband = { re, im, passBandHz: [lowHz, highHz], taperHz, narrowestSideHz: Math.min(toneHz - lowHz, highHz - toneHz) };
+  if (N0 === 0) return result;
+
+  // The impulse response of a raised-cosine taper of width Δ has decayed far below 1e-4 after ~4/Δ s.
+  const guard = nextPow2(Math.ceil((4 * sampleRate) / taperHz));
+  const N = Math.max(1 << 15, 4 * guard);
+  const step = N - 2 * guard;
+  const gain = new Float64Array(N);
+  for (let k = 1; k < N / 2; k++) {
+    const f = (k * sampleRate) / N;
+    let g = 0;
+    if (f >= lowHz && f <= highHz) g = 1;
+    else if (f < lowHz && f > lowHz - taperHz) g = 0.5 * (1 + Math.cos((Math.PI * (lowHz - f)) / taperHz));
+    else if (f > highHz && f < highHz + taperHz) g = 0.5 * (1 + Math.cos((Math.PI * (f - highHz)) / taperHz));
+    gain[k] = 2 * g; // analytic signal: positive frequencies doubled, negative ones removed
+  }
+  const fft = new FFT(N);
+  const frame = new Float64Array(N);
+  const spec = fft.createComplexArray();
+  const time = fft.createComplexArray();
+  const w0 = (2 * Math.PI * toneHz) / sampleRate;
+  const blocks = Math.ceil(N0 / step);
+  let done = 0;
+  for (let s = 0; s < N0; s += step) {
+    const start = s - guard;
+    for (let n = 0; n < N; n++) {
+      const i = start + n;
+      frame[n] = i >= 0 && i < N0 ? samples[i]! : 0;
+    }
+    fft.realTransform(spec, frame);
+    fft.completeSpectrum(spec);
+    for (let k = 0; k < N; k++) {
+      const g = gain[k]!;
+      spec[2 * k] = spec[2 * k]! * g;
+      spec[2 * k + 1] = spec[2 * k + 1]! * g;
+    }
+    fft.inverseTransform(time, spec);
+    const end = Math.min(N0, s + step);
+    for (let i = s; i < end; i++) {
+      const m = i - start;
+      const zr = time[2 * m]!;
+      const zi = time[2 * m + 1]!;
+      const c = Math.cos(w0 * i);
+      const sn = Math.sin(w0 * i);
+      // z · e^{−jω0 i}
+      re[i] = zr * c + zi * sn;
+      im[i] = zi * c - zr * sn;
+    }
+    done++;
+    options.onProgress?.(done / blocks);
+  }
+  return result;
+}
+
+/** Magnitude |re + j·im| per sample. */
+export function magnitude(bb: Baseband): Float32Array {
+  const env = new Float32Array(bb.re.length);
+  for (let i = 0; i < env.length; i++) env[i] = Math.hypot(bb.re[i]!, bb.im[i]!);
+  return env;
+}

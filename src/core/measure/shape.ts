@@ -1,0 +1,527 @@
+/**
+ * Keying shape report: rise and fall, overshoot, chirp, spectrum, occupied / x-dB / necessary
+ * bandwidth and a spectral-mask verdict — measured on a recording (`measureShape`) or predicted from
+ * the plan and the synthesizer (`predictShape`), plus a table of rise time against bandwidth
+ * (`sweepRise`). Pure: samples in, plain object out.
+ */
+import { checkRange, InputError } from '../errors.js';
+import { type EdgeKind, EDGE_KINDS } from '../signal/edges.js';
+import { synthesizeTone } from '../signal/synth.js';
+import { planKeying } from '../timing/plan.js';
+import { modulationRateBaud, wpmFromUnitMs } from '../timing/speed.js';
+import { emissionDesignator, necessaryBandwidthHz, occupiedBandwidth, powerDb, xDbBandwidth, type XdbBandwidth } from './bandwidth.js';
+import { measureChirp } from './chirp.js';
+import { classifyEdge, measureEdges, sortedCopy, spreadOf, traceEdges, type EdgeAnalysis, type EdgeKindEstimate, type EdgeTraces } from './edges.js';
+import { checkMask, DEFAULT_MASK, validateMask, type MaskVerdict, type SpectralMask } from './mask.js';
+import { complexBaseband, magnitude } from './shape-analytic.js';
+import { densityAt, noiseDensityFromGaps } from './shape-noise.js';
+import { findTonePeak, segmentLengthForRbw, welchSpectrum, type PowerSpectrum } from './spectrum.js';
+
+/** Offsets at which the click sideband level is reported [Hz]. */
+export const CLICK_OFFSETS_HZ = [100, 250, 500, 1000] as const;
+/** Levels of the x-dB bandwidths [dB below the carrier]. */
+export const XDB_LEVELS = [20, 40, 60] as const;
+/** Target resolution bandwidth of the averaged spectrum [Hz]. */
+export const TARGET_RBW_HZ = 10;
+/** Largest offset from the tone analysed [Hz]. */
+export const MAX_SPAN_HZ = 5000;
+/** Most points of the spectrum carried in the report. */
+export const MAX_SPECTRUM_POINTS = 2048;
+
+export const CAUTION =
+  'keyform measures; it does not certify. Transmitting needs a licence and must follow your local regulations ' +
+  '(bandwidth and key-click rules); mind RF exposure; isolate keying lines (opto-coupler or relay) and respect the rig maker\'s ' +
+  'keying-line voltage and current. Defer to local rules and licensed practice.';
+
+export const FILTER_NOTE =
+  "A receiver's own filter lengthens the rise and fall it passes (a 500 Hz CW filter alone adds about a millisecond): " +
+  'record through a wide filter, 2.4 kHz or more, or take the sidetone (common practice).';
+
+export interface Spread {
+  median: number | null;
+  p10: number | null;
+  p90: number | null;
+}
+
+export interface ClickLevel {
+  offsetHz: number;
+  /** Highest level within ±RBW of −offset and +offset [dBc]; null outside the analysed span. */
+  lowerDbc: number | null;
+  upperDbc: number | null;
+}
+
+export interface ShapeReport {
+  kind: 'measured' | 'predicted';
+  sampleRate: number;
+  toneHz: number;
+  durationMs: number;
+  marks: { found: number; measured: number };
+  /** 10–90 % rise and fall times [ms]. */
+  riseMs: Spread;
+  fallMs: Spread;
+  edgeKind: EdgeKindEstimate;
+  overshootPct: { median: number | null; worst: number | null };
+  /** Tone offset from the settled tone during the first `windowMs` of each mark [Hz]. */
+  chirpHz: { median: number | null; worst: number | null; windowMs: number };
+  envelope: { passBandHz: [number, number]; resolutionMs: number; note: string };
+  spectrum: {
+    window: 'Hann';
+    rbwHz: number;
+    segmentLength: number;
+    segments: number;
+    reference: string;
+    /** Offsets from the tone [Hz] and levels [dBc] (max-held when decimated). */
+    offsetHz: number[];
+    dbc: number[];
+    /** Median noise level per bin, as it shows in `dbc`, from the key-up stretches [dBc]; null when there were none. */
+    noiseFloorDbc: number | null;
+  };
+  /** ITU-R SM.328 occupied (99 %) bandwidth after removing the noise floor [Hz]. */
+  occupiedBandwidthHz: number | null;
+  occupiedBandEdgesHz: { lowerHz: number; upperHz: number } | null;
+  noiseCorrection: { applied: boolean; uncorrectedHz: number | null; correctionPct: number | null; note: string };
+  bandwidthAtDbcHz: { '20': number | null; '40': number | null; '60': number | null };
+  bandwidthBasis: { '20': XdbBandwidth['basis']; '40': XdbBandwidth['basis']; '60': XdbBandwidth['basis'] };
+  clickDbc: ClickLevel[];
+  speed: { unitMs: number | null; wpm: number | null; modulationRateBaud: number | null; source: 'plan' | 'measured' | 'given' };
+  /** ITU-R SM.1138 necessary bandwidth Bn = B·K [Hz]. */
+  necessaryBandwidthHz: number | null;
+  k: number;
+  designator: string | null;
+  occupiedToNecessary: number | null;
+  necessaryNote: string;
+  mask: MaskVerdict & { shortestPassingRiseMs: number | null; sweepEdge: EdgeKind };
+  edges: EdgeTraces;
+  warnings: string[];
+  notes: string[];
+}
+
+export interface ShapeOptions {
+  /** Tone frequency [Hz]; found as the strongest spectral peak between 100 Hz and 5 kHz when omitted. */
+  toneHz?: number;
+  /** SM.1138 K factor: 5 fading (default), 3 non-fading. */
+  k?: number;
+  /** Spectral mask; the common-practice default when omitted. */
+  mask?: SpectralMask;
+  /** Unit length [ms] to use instead of measuring it. */
+  unitMs?: number;
+  /** Find the shortest rise time that meets the mask at this speed (runs a sweep; default true). */
+  findShortestRise?: boolean;
+  /** Chirp window after key-down [ms]; default 10. */
+  chirpWindowMs?: number;
+  /** Called with the fraction done (0…1). */
+  onProgress?: (fraction: number) => void;
+}
+
+const round = (x: number | null, digits = 3): number | null => (x === null || !Number.isFinite(x) ? null : Number(x.toFixed(digits)));
+
+function roundSpread(s: Spread, digits = 3): Spread {
+  return { median: round(s.median, digits), p10: round(s.p10, digits), p90: round(s.p90, digits) };
+}
+
+interface SpectralFigures {
+  spectrum: PowerSpectrum;
+  offsets: Float64Array;
+  dbc: Float64Array;
+  referencePower: number;
+  occupied: ReturnType<typeof occupiedBandwidth>;
+  uncorrected: ReturnType<typeof occupiedBandwidth>;
+  noiseApplied: boolean;
+  noiseFloorDbc: number | null;
+  xdb: Record<'20' | '40' | '60', XdbBandwidth>;
+  clicks: ClickLevel[];
+  verdict: MaskVerdict;
+}
+
+/** Spectrum around the tone and every figure taken from it. */
+function spectralFigures(
+  samples: Float32Array,
+  sampleRate: number,
+  toneHz: number,
+  mask: SpectralMask,
+  quiet: ReadonlyArray<readonly [number, number]>,
+  onProgress?: (f: number) => void,
+): SpectralFigures {
+  const L = Math.min(segmentLengthForRbw(sampleRate, TARGET_RBW_HZ), Math.max(64, 2 ** Math.floor(Math.log2(Math.max(64, samples.length)))));
+  const spectrum = welchSpectrum(samples, sampleRate, { segmentLength: L, onProgress });
+  const { binHz, binPower } = spectrum;
+  const spanLow = Math.min(MAX_SPAN_HZ, toneHz - 2 * binHz);
+  const spanHigh = Math.min(MAX_SPAN_HZ, sampleRate / 2 - toneHz - 2 * binHz);
+  const k0 = Math.max(1, Math.ceil((toneHz - spanLow) / binHz));
+  const k1 = Math.min(binPower.length - 2, Math.floor((toneHz + spanHigh) / binHz));
+  const n = Math.max(0, k1 - k0 + 1);
+  const offsets = new Float64Array(n);
+  const power = new Float64Array(n);
+  let ref = 0;
+  for (let j = 0; j < n; j++) {
+    offsets[j] = (k0 + j) * binHz - toneHz;
+    power[j] = binPower[k0 + j]!;
+    ref = Math.max(ref, power[j]!);
+  }
+  const dbc = new Float64Array(n);
+  for (let j = 0; j < n; j++) dbc[j] = powerDb(power[j]! / (ref || 1));
+
+  const noise = noiseDensityFromGaps(samples, sampleRate, quiet);
+  const noiseApplied = noise.segments >= 4;
+  const clean = new Float64Array(n);
+  const floor: number[] = [];
+  for (let j = 0; j < n; j++) {
+    const nb = noiseApplied ? densityAt(noise, sampleRate, toneHz + offsets[j]!) * binHz : 0;
+    floor.push(nb);
+    clean[j] = Math.max(0, power[j]! - nb);
+  }
+  const occupied = occupiedBandwidth({ offsetHz: offsets, power: clean, binHz });
+  const uncorrected = occupiedBandwidth({ offsetHz: offsets, power, binHz });
+  const noiseFloorDbc = noiseApplied && ref > 0 ? powerDb(sortedCopy(floor)[Math.floor(floor.length / 2)]! / ref) : null;
+  const xdb = {
+    '20': xDbBandwidth(offsets, dbc, 20),
+    '40': xDbBandwidth(offsets, dbc, 40),
+    '60': xDbBandwidth(offsets, dbc, 60),
+  };
+  const clicks: ClickLevel[] = CLICK_OFFSETS_HZ.map((offsetHz) => {
+    const levelNear = (f: number): number | null => {
+      let best: number | null = null;
+      for (let j = 0; j < n; j++) if (Math.abs(offsets[j]! - f) <= spectrum.rbwHz) best = best === null ? dbc[j]! : Math.max(best, dbc[j]!);
+      return best === null ? null : round(best, 1);
+    };
+    return { offsetHz, lowerDbc: levelNear(-offsetHz), upperDbc: levelNear(offsetHz) };
+  });
+  const verdict = checkMask(offsets, dbc, mask);
+  return { spectrum, offsets, dbc, referencePower: ref, occupied, uncorrected, noiseApplied, noiseFloorDbc, xdb, clicks, verdict };
+}
+
+/** Unit length from the marks and gaps: the median short mark and short gap (element gap = 1 unit). */
+export function estimateUnitMs(marks: ReadonlyArray<{ startMs: number; endMs: number }>): number | null {
+  if (marks.length === 0) return null;
+  const durations = marks.map((m) => m.endMs - m.startMs);
+  const gaps: number[] = [];
+  for (let i = 1; i < marks.length; i++) gaps.push(marks[i]!.startMs - marks[i - 1]!.endMs);
+  const shortMedian = (xs: number[]): number | null => {
+    if (xs.length === 0) return null;
+    const s = sortedCopy(xs);
+    const m = s[0]!;
+    return spreadOf(s.filter((x) => x < 2 * m)).median;
+  };
+  const dot = shortMedian(durations);
+  const gap = shortMedian(gaps);
+  if (dot === null) return null;
+  if (gap === null) return dot;
+  const r = dot / gap;
+  return r > 0.5 && r < 2 ? (dot + gap) / 2 : Math.min(dot, gap);
+}
+
+/** Measures the 10–90 % rise of a hard-keyed burst through the envelope filter: the envelope's own resolution. */
+function envelopeResolutionMs(sampleRate: number, toneHz: number): number {
+  const marks: Array<[number, number]> = [[0, 40]];
+  const t = synthesizeTone({ marks, sampleRate, toneHz, levelDb: -6, edge: 'hard', riseMs: 0, padMs: 40 });
+  const env = magnitude(complexBaseband(t.samples, sampleRate, { toneHz }));
+  const e = measureEdges(env, sampleRate);
+  return e.marks[0]?.rise?.rise10to90Ms ?? NaN;
+}
+
+interface ShapeInputs {
+  samples: Float32Array;
+  sampleRate: number;
+  toneHz: number;
+  kind: 'measured' | 'predicted';
+  unit: { unitMs: number | null; source: 'plan' | 'measured' | 'given' };
+}
+
+function composeReport(input: ShapeInputs, options: ShapeOptions, analysis: { edges: EdgeAnalysis; baseband: ReturnType<typeof complexBaseband> }, warnings: string[]): ShapeReport {
+  const { samples, sampleRate, toneHz } = input;
+  const progress = options.onProgress ?? (() => {});
+  const k = checkRange('K', options.k ?? 5, 1, 10);
+  const mask = validateMask(options.mask ?? DEFAULT_MASK);
+  const { edges, baseband } = analysis;
+  const measured = edges.marks.filter((m) => m.rise && m.fall);
+  const rises = measured.map((m) => m.rise!.rise10to90Ms);
+  const falls = measured.map((m) => m.fall!.rise10to90Ms);
+  const riseMs = spreadOf(rises);
+  const fallMs = spreadOf(falls);
+  const resolutionMs = envelopeResolutionMs(sampleRate, toneHz);
+  const both = [...measured.map((m) => m.rise!), ...measured.map((m) => m.fall!)];
+  // Share of the 10–90 % time spent below the half-way level in time order: 0.268 for an RC edge, rising or falling.
+  const asymmetry = spreadOf([
+    ...measured.map((m) => m.rise!.levelTimesMs.p50 / m.rise!.rise10to90Ms),
+    ...measured.map((m) => 1 - m.fall!.levelTimesMs.p50 / m.fall!.rise10to90Ms),
+  ]).median;
+  const spread = spreadOf(both.map((e) => (e.levelTimesMs.p95 - e.levelTimesMs.p5) / e.rise10to90Ms)).median;
+  const allEdges = spreadOf([...rises, ...falls]).median;
+  const edgeKind = classifyEdge({ rise10to90Ms: allEdges, asymmetry, spread }, resolutionMs);
+  if (allEdges !== null && allEdges < 3 * resolutionMs && edgeKind !== 'hard') {
+    warnings.push(
+      `the measured edges (${allEdges.toFixed(2)} ms) are less than 3× the envelope's own response (${resolutionMs.toFixed(2)} ms): ` +
+        'they are probably somewhat shorter than measured; a higher tone gives a wider envelope',
+    );
+  }
+  const overs = measured.map((m) => m.overshootPct);
+  const chirps = measureChirp(baseband, sampleRate, edges.marks, { windowMs: options.chirpWindowMs });
+  const chirpValues = chirps.map((c) => c.chirpHz);
+  let worstChirp: number | null = null;
+  for (const c of chirpValues) if (worstChirp === null || Math.abs(c) > Math.abs(worstChirp)) worstChirp = c;
+  progress(0.5);
+
+  // Key-up stretches clear of the edges, for the noise floor.
+  const perMs = sampleRate / 1000;
+  const guardMs = 10 + 4 * (allEdges ?? 5);
+  const quiet: Array<[number, number]> = [];
+  let prev = 0;
+  for (const m of edges.marks) {
+    quiet.push([Math.round(prev * perMs), Math.round((m.startMs - guardMs) * perMs)]);
+    prev = m.endMs + guardMs;
+  }
+  quiet.push([Math.round(prev * perMs), samples.length]);
+  const fig = spectralFigures(samples, sampleRate, toneHz, mask, quiet.filter(([a, b]) => b > a), (f) => progress(0.5 + 0.3 * f));
+  if (!fig.noiseApplied && input.kind === 'measured') {
+    warnings.push('no key-up stretch long enough to estimate the noise floor; the occupied bandwidth includes the recording\'s noise');
+  }
+  const obw = fig.occupied;
+  const unObw = fig.uncorrected;
+  const correctionPct = obw && unObw && obw.widthHz > 0 ? ((unObw.widthHz - obw.widthHz) / obw.widthHz) * 100 : null;
+
+  const unitMs = input.unit.unitMs;
+  const baud = unitMs !== null ? modulationRateBaud(unitMs) : null;
+  const bn = baud !== null ? necessaryBandwidthHz(baud, k) : null;
+  if (unitMs === null) warnings.push('no marks to measure the speed from; necessary bandwidth not computed');
+  else if (input.unit.source === 'measured' && edges.marks.length < 4) {
+    warnings.push(`the speed rests on only ${edges.marks.length} mark(s); give the unit with --wpm for a sure necessary bandwidth`);
+  }
+  const wpm = unitMs !== null ? wpmFromUnitMs(unitMs) : null;
+
+  let shortest: number | null = null;
+  const sweepEdge: EdgeKind = edgeKind === 'linear' || edgeKind === 'exponential' ? edgeKind : 'raised-cosine';
+  if ((options.findShortestRise ?? true) && wpm !== null && wpm >= 1 && wpm <= 100) {
+    const sweep = sweepRise({ wpm, edge: sweepEdge, k, mask, onProgress: (f) => progress(0.8 + 0.2 * f) });
+    shortest = sweep.shortestPassingRiseMs;
+  }
+  progress(1);
+
+  // Spectrum for the report, max-held down to at most MAX_SPECTRUM_POINTS.
+  const group = Math.max(1, Math.ceil(fig.dbc.length / MAX_SPECTRUM_POINTS));
+  const offsetHz: number[] = [];
+  const dbc: number[] = [];
+  for (let j = 0; j < fig.dbc.length; j += group) {
+    let best = -Infinity;
+    let sum = 0;
+    let n = 0;
+    for (let i = j; i < Math.min(fig.dbc.length, j + group); i++) {
+      best = Math.max(best, fig.dbc[i]!);
+      sum += fig.offsets[i]!;
+      n++;
+    }
+    offsetHz.push(round(sum / n, 2)!);
+    dbc.push(round(best, 2)!);
+  }
+
+  const traces = traceEdges(baseband.re.length ? magnitude(baseband) : new Float32Array(0), sampleRate, edges.marks, Math.max(2, 1.5 * (allEdges ?? 2)));
+  const xd = fig.xdb;
+  return {
+    kind: input.kind,
+    sampleRate,
+    toneHz: round(toneHz, 2)!,
+    durationMs: round((samples.length * 1000) / sampleRate, 1)!,
+    marks: { found: edges.marks.length, measured: measured.length },
+    riseMs: roundSpread(riseMs),
+    fallMs: roundSpread(fallMs),
+    edgeKind,
+    overshootPct: { median: round(spreadOf(overs).median, 2), worst: overs.length ? round(Math.max(...overs), 2) : null },
+    chirpHz: { median: round(spreadOf(chirpValues).median, 2), worst: round(worstChirp, 2), windowMs: options.chirpWindowMs ?? 10 },
+    envelope: {
+      passBandHz: [round(baseband.passBandHz[0], 1)!, round(baseband.passBandHz[1], 1)!],
+      resolutionMs: round(resolutionMs, 3)!,
+      note: `rise and fall measured on a ${Math.round(baseband.passBandHz[0])}–${Math.round(baseband.passBandHz[1])} Hz analytic envelope (a hard step reads ${resolutionMs.toFixed(2)} ms through it). ${FILTER_NOTE}`,
+    },
+    spectrum: {
+      window: 'Hann',
+      rbwHz: round(fig.spectrum.rbwHz, 3)!,
+      segmentLength: fig.spectrum.segmentLength,
+      segments: fig.spectrum.segments,
+      reference: `0 dBc = the strongest bin of the averaged spectrum (Hann window, 75 % overlap, RBW ${fig.spectrum.rbwHz.toFixed(2)} Hz)`,
+      offsetHz,
+      dbc,
+      noiseFloorDbc: round(fig.noiseFloorDbc, 1),
+    },
+    occupiedBandwidthHz: obw ? round(obw.widthHz, 1) : null,
+    occupiedBandEdgesHz: obw ? { lowerHz: round(obw.lowerHz, 1)!, upperHz: round(obw.upperHz, 1)! } : null,
+    noiseCorrection: {
+      applied: fig.noiseApplied,
+      uncorrectedHz: unObw ? round(unObw.widthHz, 1) : null,
+      correctionPct: fig.noiseApplied ? round(correctionPct, 2) : null,
+      note: fig.noiseApplied
+        ? 'the noise floor measured in the key-up stretches was subtracted before integrating the 99 % band (ITU-R SM.328)'
+        : 'no noise correction',
+    },
+    bandwidthAtDbcHz: { '20': round(xd['20'].widthHz, 1), '40': round(xd['40'].widthHz, 1), '60': round(xd['60'].widthHz, 1) },
+    bandwidthBasis: { '20': xd['20'].basis, '40': xd['40'].basis, '60': xd['60'].basis },
+    clickDbc: fig.clicks,
+    speed: { unitMs: round(unitMs, 3), wpm: round(wpm, 2), modulationRateBaud: round(baud, 3), source: input.unit.source },
+    necessaryBandwidthHz: round(bn, 2),
+    k,
+    designator: bn !== null ? emissionDesignator(bn) : null,
+    occupiedToNecessary: obw && bn ? round(obw.widthHz / bn, 2) : null,
+    necessaryNote:
+      `ITU-R SM.1138: Bn = B·K for on-off keyed telegraphy, B = 1/unit = ${baud?.toFixed(2) ?? '?'} baud from the ${input.unit.source} timing, K = ${k} ` +
+      `(${k === 5 ? 'fading circuit' : k === 3 ? 'non-fading circuit' : 'as given'}). The Recommendation's own example uses the traditional conversion B ≈ 0.8 × wpm ` +
+      '(25 wpm → 20 baud → 100 Hz, 100HA1AAN). Keyed signals with sensible shaping usually occupy somewhat more than Bn: information, not a verdict.',
+    mask: { ...fig.verdict, shortestPassingRiseMs: shortest, sweepEdge },
+    edges: traces,
+    warnings,
+    notes: [FILTER_NOTE, CAUTION],
+  };
+}
+
+/**
+ * Measures the keying shape of a recording of a keyed tone.
+ * @param samples - Mono samples (any scale); at least 50 ms.
+ * @param sampleRate - Sample rate [Hz], 8000…192000.
+ * @param options - Tone, K factor, mask, unit; `onProgress(fraction)` for long recordings.
+ * @returns A ShapeReport (stable JSON shape).
+ * @example measureShape(samples, 48000, { toneHz: 700 }).riseMs.median //=> ≈ 5 for 5 ms raised-cosine edges
+ */
+export function measureShape(samples: Float32Array, sampleRate: number, options: ShapeOptions = {}): ShapeReport {
+  checkRange('sample rate', sampleRate, 8000, 192_000, 'Hz');
+  if (samples.length < sampleRate * 0.05) throw new InputError(`the recording is too short to analyse (${((samples.length / sampleRate) * 1000).toFixed(1)} ms; need at least 50 ms)`);
+  const progress = options.onProgress ?? (() => {});
+  const warnings: string[] = [];
+  let toneHz = options.toneHz;
+  if (toneHz === undefined) {
+    const L = Math.min(segmentLengthForRbw(sampleRate, TARGET_RBW_HZ), 2 ** Math.floor(Math.log2(samples.length)));
+    const found = findTonePeak(welchSpectrum(samples, sampleRate, { segmentLength: Math.max(64, L) }), 100, Math.min(5000, sampleRate / 2 - 100));
+    if (found === null) throw new InputError('no tone found between 100 Hz and 5 kHz; give it with --tone');
+    toneHz = found;
+  } else if (!(toneHz > 0 && toneHz < sampleRate / 2)) {
+    throw new InputError(`tone must be above 0 and below sampleRate/2 = ${sampleRate / 2} Hz (got ${toneHz})`);
+  }
+  progress(0.05);
+  const baseband = complexBaseband(samples, sampleRate, { toneHz, onProgress: (f) => progress(0.05 + 0.3 * f) });
+  const edges = measureEdges(magnitude(baseband), sampleRate);
+  warnings.push(...edges.warnings);
+  if (edges.marks.length === 0) warnings.push('no marks found: rise, fall and chirp are not measured');
+  let unit: ShapeInputs['unit'];
+  if (options.unitMs !== undefined) unit = { unitMs: checkRange('unit', options.unitMs, 1, 2000, 'ms'), source: 'given' };
+  else unit = { unitMs: estimateUnitMs(edges.marks), source: 'measured' };
+  return composeReport({ samples, sampleRate, toneHz, kind: 'measured', unit }, { ...options, onProgress: (f) => progress(0.35 + 0.65 * f) }, { edges, baseband }, warnings);
+}
+
+export interface PredictOptions extends Omit<ShapeOptions, 'toneHz' | 'unitMs'> {
+  /** Character speed [wpm, PARIS], 1…100. */
+  wpm: number;
+  /** Overall speed with Farnsworth spacing [wpm]; the unit (and so B) stays that of `wpm`. */
+  farnsworthWpm?: number | null;
+  /** 10–90 % rise and fall time [ms], 0…50 (ignored for hard keying). */
+  riseMs: number;
+  edge: EdgeKind;
+  /** Text keyed for the prediction; default 'PARIS PARIS' (the standard word). */
+  text?: string;
+  /** Optional chirp model: tone offset [Hz] at t ms after each key-down. */
+  chirp?: (msSinceKeyDown: number) => number;
+}
+
+/** Sample rate and tone used for predictions: wide enough for ±5 kHz of spectrum and a sharp envelope. */
+export const PREDICT_SAMPLE_RATE = 24_000;
+export const PREDICT_TONE_HZ = 6000;
+
+function synthesizePrediction(o: PredictOptions): { samples: Float32Array; unitMs: number } {
+  if (!(EDGE_KINDS as readonly string[]).includes(o.edge)) throw new InputError(`edge must be one of ${EDGE_KINDS.join(', ')} (got '${o.edge}')`);
+  const plan = planKeying(o.text ?? 'PARIS PARIS', { wpm: o.wpm, farnsworthWpm: o.farnsworthWpm ?? null });
+  const tone = synthesizeTone({
+    marks: plan.marks,
+    sampleRate: PREDICT_SAMPLE_RATE,
+    toneHz: PREDICT_TONE_HZ,
+    levelDb: -6,
+    edge: o.edge,
+    riseMs: o.edge === 'hard' ? 0 : o.riseMs,
+    padMs: 300,
+    chirp: o.chirp,
+  });
+  return { samples: tone.samples, unitMs: plan.unitMs };
+}
+
+/**
+ * The shape report predicted from the keying plan and the synthesizer alone (no recording): the
+ * synthesized signal is analysed exactly as a recording would be, with the planned unit.
+ * @example predictShape({ wpm: 20, riseMs: 5, edge: 'raised-cosine' }).necessaryBandwidthHz //=> 83.33
+ */
+export function predictShape(options: PredictOptions): ShapeReport {
+  checkRange('wpm', options.wpm, 1, 100, 'wpm');
+  checkRange('rise', options.riseMs, 0, 50, 'ms');
+  const { samples, unitMs } = synthesizePrediction(options);
+  const progress = options.onProgress ?? (() => {});
+  const baseband = complexBaseband(samples, PREDICT_SAMPLE_RATE, { toneHz: PREDICT_TONE_HZ, onProgress: (f) => progress(0.3 * f) });
+  const edges = measureEdges(magnitude(baseband), PREDICT_SAMPLE_RATE);
+  const warnings = [...edges.warnings];
+  return composeReport(
+    { samples, sampleRate: PREDICT_SAMPLE_RATE, toneHz: PREDICT_TONE_HZ, kind: 'predicted', unit: { unitMs, source: 'plan' } },
+    { ...options, onProgress: (f) => progress(0.3 + 0.7 * f) },
+    { edges, baseband },
+    warnings,
+  );
+}
+
+export interface SweepOptions {
+  wpm: number;
+  farnsworthWpm?: number | null;
+  edge: EdgeKind;
+  /** Rise times to try [ms]; default 0.5 … 15 ms in 0.5 ms steps. */
+  risesMs?: number[];
+  k?: number;
+  mask?: SpectralMask;
+  text?: string;
+  onProgress?: (fraction: number) => void;
+}
+
+export interface SweepRow {
+  riseMs: number;
+  occupiedBandwidthHz: number | null;
+  bandwidthAt40DbcHz: number | null;
+  maskPass: boolean;
+  worstExcessDb: number | null;
+}
+
+export interface SweepResult {
+  wpm: number;
+  edge: EdgeKind;
+  mask: string;
+  necessaryBandwidthHz: number;
+  rows: SweepRow[];
+  /** Shortest rise time in the table from which every longer one meets the mask [ms], or null. */
+  shortestPassingRiseMs: number | null;
+}
+
+/**
+ * Rise time against occupied and −40 dBc bandwidth at a given speed, with the shortest rise time that
+ * meets the mask (spectral figures only; no edge or chirp analysis).
+ * @example sweepRise({ wpm: 20, edge: 'raised-cosine' }).shortestPassingRiseMs //=> a few ms
+ */
+export function sweepRise(options: SweepOptions): SweepResult {
+  checkRange('wpm', options.wpm, 1, 100, 'wpm');
+  const mask = validateMask(options.mask ?? DEFAULT_MASK);
+  const rises = options.risesMs ?? Array.from({ length: 30 }, (_, i) => (i + 1) * 0.5);
+  rises.forEach((r) => checkRange('rise', r, 0, 50, 'ms'));
+  const rows: SweepRow[] = [];
+  let unitMs = 0;
+  rises.forEach((riseMs, i) => {
+    const syn = synthesizePrediction({ wpm: options.wpm, farnsworthWpm: options.farnsworthWpm, edge: options.edge, riseMs, text: options.text });
+    unitMs = syn.unitMs;
+    const fig = spectralFigures(syn.samples, PREDICT_SAMPLE_RATE, PREDICT_TONE_HZ, mask, []);
+    rows.push({
+      riseMs,
+      occupiedBandwidthHz: fig.occupied ? round(fig.occupied.widthHz, 1) : null,
+      bandwidthAt40DbcHz: round(fig.xdb['40'].widthHz, 1),
+      maskPass: fig.verdict.pass,
+      worstExcessDb: round(fig.verdict.worstExcessDb, 1),
+    });
+    options.onProgress?.((i + 1) / rises.length);
+  });
+  let shortest: number | null = null;
+  const byRise = [...rows].sort((a, b) => a.riseMs - b.riseMs);
+  for (let i = byRise.length - 1; i >= 0 && byRise[i]!.maskPass; i--) shortest = byRise[i]!.riseMs;
+  return {
+    wpm: options.wpm,
+    edge: options.edge,
+    mask: mask.name,
+    necessaryBandwidthHz: round(necessaryBandwidthHz(modulationRateBaud(unitMs), options.k ?? 5), 2)!,
+    rows,
+    shortestPassingRiseMs: shortest,
+  };
+}
