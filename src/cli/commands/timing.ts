@@ -46,7 +46,8 @@ async function loadReceiver(): Promise<Receiver> {
   const path = '../../core/receive/index.js';
   try {
     return (await import(path)) as Receiver;
-  } catch {
+  } catch (err) {
+    if ((err as NodeJS.ErrnoException).code !== 'ERR_MODULE_NOT_FOUND') throw err;
     throw new InputError('WAV input needs the receiver, which is not part of this build; use a logic capture (CSV) instead');
   }
 }
