@@ -5,7 +5,7 @@
  */
 import { InputError } from '../core/errors.js';
 import type { Interval } from '../core/timeline.js';
-import { openAudio, type OpenAudioOptions } from '../io/audio-source.js';
+import { concatChunks, openAudio, type AudioSource, type OpenAudioOptions } from '../io/audio-source.js';
 
 /** One line of a batch report. Numbers are null where they could not be measured. */
 export interface BatchRow {
@@ -67,14 +67,17 @@ interface DecodeResultLike {
   durationMs: number;
 }
 interface ReceiverModule {
-  StreamDecoder: new (sampleRate: number, options?: { toneHz?: number; onProgress?: (f: number) => void }) => {
+  StreamDecoder: new (
+    sampleRate: number,
+    options?: { toneHz?: number; onProgress?: (f: number) => void; onText?: (text: string) => void; expectedSamples?: number },
+  ) => {
     push(chunk: Float32Array): void;
     finish(): DecodeResultLike;
   };
   pickChannel(channels: Float32Array[], sampleRate: number): { index: number; reason: string };
 }
 interface ShapeModule {
-  measureShape(samples: Float32Array, sampleRate: number, options?: { toneHz?: number }): {
+  measureShape(samples: Float32Array, sampleRate: number, options?: { toneHz?: number; unitMs?: number; findShortestRise?: boolean }): {
     riseMs?: { median: number | null } | null;
     occupiedBandwidthHz?: number | null;
     mask?: { pass: boolean } | null;
@@ -127,6 +130,118 @@ export function errorLine(err: unknown): string {
   return err instanceof InputError ? line : `internal error: ${line}`;
 }
 
+export interface StreamDecodeOptions {
+  /** Carrier tone [Hz]; found automatically when omitted. */
+  toneHz?: number;
+  /** Channel to decode (0-based); by default the one with the strongest keyed tone in the first seconds. */
+  channel?: number;
+  /** Keep this much audio of the decoded channel from the start, for analyses that need samples [s] (default 0). */
+  keepSeconds?: number;
+  /** Progress 0…1 (only when the length is known in advance). */
+  onProgress?: (fraction: number) => void;
+  /** Newly final text as it is decoded (live following of a pipe). */
+  onText?: (text: string) => void;
+}
+
+export interface StreamDecode {
+  result: DecodeResultLike;
+  /** The channel decoded (0-based). */
+  channel: number;
+  /** Which channel was chosen and why (multichannel input without `channel`), else null. */
+  channelNote: string | null;
+  /** The first `keepSeconds` of the decoded channel. */
+  excerpt: Float32Array;
+}
+
+/**
+ * Runs an opened recording (file, raw PCM or stdin) through the streaming receiver chunk by chunk:
+ * memory stays bounded whatever the length. A multichannel stream is held for its first
+ * PICK_SECONDS to choose the channel with the strongest keyed tone, then only that channel is decoded.
+ * @example const { result } = await decodeAudioSource(await openAudio('-', { stdin, raw: 's16le', rate: 8000 }), { onText: write });
+ */
+export async function decodeAudioSource(audio: AudioSource, options: StreamDecodeOptions = {}): Promise<StreamDecode> {
+  const receiver = await loadReceiver();
+  if (!receiver) throw new InputError('the receiver is not part of this build');
+  const { sampleRate, channelCount } = audio;
+  if (options.channel !== undefined && (!Number.isInteger(options.channel) || options.channel < 0 || options.channel >= channelCount)) {
+    throw new InputError(`${audio.name}: channel ${options.channel} does not exist (the input has ${channelCount}, numbered from 0)`);
+  }
+  const totalFrames = audio.durationMs !== null ? Math.round((audio.durationMs / 1000) * sampleRate) : null;
+  const keepFrames = Math.round((options.keepSeconds ?? 0) * sampleRate);
+  const excerpt = new Float32Array(totalFrames !== null ? Math.min(keepFrames, totalFrames) : keepFrames);
+  let kept = 0;
+  let channel = options.channel ?? (channelCount === 1 ? 0 : -1);
+  let channelNote: string | null = null;
+  const held: Float32Array[][] = [];
+  let heldFrames = 0;
+  const decoder = new receiver.StreamDecoder(sampleRate, {
+    toneHz: options.toneHz,
+    onText: options.onText,
+    onProgress: options.onProgress,
+    expectedSamples: totalFrames ?? undefined,
+  });
+  let fed = 0;
+
+  const feed = (samples: Float32Array): void => {
+    decoder.push(samples);
+    fed += samples.length;
+    if (kept < excerpt.length) {
+      const n = Math.min(samples.length, excerpt.length - kept);
+      excerpt.set(samples.subarray(0, n), kept);
+      kept += n;
+    }
+  };
+  const choose = (): void => {
+    const joined = concatChunks(held, channelCount);
+    const pick = receiver.pickChannel(joined, sampleRate);
+    channel = pick.index;
+    channelNote = `${audio.name}: using channel ${channel} of ${channelCount} (${pick.reason})`;
+    held.length = 0;
+    feed(joined[channel]!);
+  };
+
+  for await (const chunk of audio.chunks()) {
+    if (channel >= 0) {
+      feed(chunk[channel]!);
+      continue;
+    }
+    held.push(chunk);
+    heldFrames += chunk[0]!.length;
+    if (heldFrames >= PICK_SECONDS * sampleRate) choose();
+  }
+  if (channel < 0) choose();
+  if (fed === 0) throw new InputError(`${audio.name}: no audio samples`);
+  return { result: decoder.finish(), channel, channelNote, excerpt: excerpt.subarray(0, kept) };
+}
+
+/**
+ * Collects live text pieces into lines for a terminal or a pipe: each piece is written as soon as
+ * it arrives; a line ends at a word boundary past `lineWidth` characters, so a log of a pipe
+ * stays readable. Call `end()` to finish the last line.
+ * @example const f = followText((s) => process.stdout.write(s)); decoderOptions.onText = f.write;
+ */
+export function followText(write: (s: string) => void, lineWidth = 72): { write: (piece: string) => void; end: () => void } {
+  let column = 0;
+  return {
+    write(piece: string) {
+      let text = piece;
+      if (column === 0) text = text.replace(/^ +/, '');
+      else if (text.startsWith(' ') && column + text.length > lineWidth) {
+        write('\n');
+        column = 0;
+        text = text.replace(/^ +/, '');
+      }
+      if (text === '') return;
+      write(text);
+      column += text.length;
+    },
+    end() {
+      if (column > 0) write('\n');
+      column = 0;
+    },
+  };
+}
+
 /**
  * Analyses one recording: decode, timing and shape. Long files stream through the receiver in
  * chunks; the shape analysis sees the first `shapeSeconds` of the chosen channel.
@@ -148,65 +263,11 @@ export async function analyzeRecording(path: string, options: AnalyzeOptions = {
 
 async function analyzeInto(row: BatchRow, path: string, options: AnalyzeOptions): Promise<void> {
   const audio = await openAudio(path, options);
-  const receiver = await loadReceiver();
-  if (!receiver) throw new InputError('the receiver is not part of this build');
-  const { sampleRate, channelCount } = audio;
-  if (options.channel !== undefined && (options.channel < 0 || options.channel >= channelCount)) {
-    throw new InputError(`${audio.name}: channel ${options.channel} does not exist (the file has ${channelCount}, numbered from 0)`);
-  }
-  const totalFrames = audio.durationMs !== null ? (audio.durationMs / 1000) * sampleRate : null;
-  const shapeFrames = options.skipShape ? 0 : Math.round((options.shapeSeconds ?? 60) * sampleRate);
-  const shapeBuffer = new Float32Array(totalFrames !== null ? Math.min(shapeFrames, Math.ceil(totalFrames)) : shapeFrames);
-  let shapeFilled = 0;
-
-  let channel = options.channel ?? (channelCount === 1 ? 0 : -1);
-  const held: Float32Array[][] = [];
-  let heldFrames = 0;
-  let decoder: InstanceType<ReceiverModule['StreamDecoder']> | null = null;
-  let framesDone = 0;
-
-  const feed = (samples: Float32Array): void => {
-    if (!decoder) decoder = new receiver.StreamDecoder(sampleRate, { toneHz: options.toneHz });
-    decoder.push(samples);
-    if (shapeFilled < shapeBuffer.length) {
-      const n = Math.min(samples.length, shapeBuffer.length - shapeFilled);
-      shapeBuffer.set(samples.subarray(0, n), shapeFilled);
-      shapeFilled += n;
-    }
-    framesDone += samples.length;
-    if (options.onProgress && totalFrames) options.onProgress(Math.min(1, framesDone / totalFrames));
-  };
-  const choose = (): void => {
-    // Pick the channel with the strongest keyed tone from the first seconds, then stream only that one.
-    const joined = Array.from({ length: channelCount }, (_, c) => {
-      const a = new Float32Array(heldFrames);
-      let o = 0;
-      for (const h of held) {
-        a.set(h[c]!, o);
-        o += h[c]!.length;
-      }
-      return a;
-    });
-    const pick = receiver.pickChannel(joined, sampleRate);
-    channel = pick.index;
-    row.warnings.push(`${audio.name}: using channel ${channel} of ${channelCount} (${pick.reason})`);
-    feed(joined[channel]!);
-    held.length = 0;
-  };
-
-  for await (const chunk of audio.chunks()) {
-    if (channel >= 0) {
-      feed(chunk[channel]!);
-      continue;
-    }
-    held.push(chunk);
-    heldFrames += chunk[0]!.length;
-    if (heldFrames >= PICK_SECONDS * sampleRate) choose();
-  }
-  if (channel < 0) choose();
+  const keepSeconds = options.skipShape ? 0 : (options.shapeSeconds ?? 60);
+  const { result, excerpt, channelNote } = await decodeAudioSource(audio, { toneHz: options.toneHz, channel: options.channel, keepSeconds, onProgress: options.onProgress });
+  const sampleRate = audio.sampleRate;
+  if (channelNote) row.warnings.push(channelNote);
   row.warnings.push(...audio.warnings);
-  if (!decoder) throw new InputError(`${audio.name}: no audio samples`);
-  const result = (decoder as InstanceType<ReceiverModule['StreamDecoder']>).finish();
   row.durationS = round((audio.durationMs ?? result.durationMs) / 1000, 3);
   row.text = result.text;
   row.wpm = round(result.wpm, 1);
@@ -225,11 +286,15 @@ async function analyzeInto(row: BatchRow, path: string, options: AnalyzeOptions)
       }
     }
   }
-  if (shapeFilled > 0 && result.marks.length > 0) {
+  if (excerpt.length > 0 && result.marks.length > 0) {
     const shape = await loadShape();
     if (shape) {
       try {
-        const report = shape.measureShape(shapeBuffer.subarray(0, shapeFilled), sampleRate, { toneHz: result.toneHz ?? options.toneHz });
+        const report = shape.measureShape(excerpt, sampleRate, {
+          toneHz: result.toneHz ?? options.toneHz,
+          unitMs: result.unitMs ?? undefined,
+          findShortestRise: false,
+        });
         row.riseMs = round(report.riseMs?.median, 2);
         row.occupiedBandwidthHz = round(report.occupiedBandwidthHz, 0);
         if (report.mask && report.mask.pass === false) row.verdict = 'mask fail';
