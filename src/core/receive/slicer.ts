@@ -1,0 +1,106 @@
+/**
+ * Level tracking and slicing at the slot rate: a matched filter (coherent sum over about one unit),
+ * a signal level that follows the marks (and decays through fades), a noise level that follows the
+ * gaps, and an on/off decision between them with hysteresis.
+ */
+export interface SlicerOptions {
+  /** Matched-filter length [slots], about one unit, ≥ 1. */
+  windowSlots: number;
+  /** Slot length [ms]. */
+  slotMs: number;
+  /** Starting carrier power of one slot (|z|² units). */
+  signalPow: number;
+  /** Starting noise power of one slot (|z|² units). */
+  noisePow: number;
+}
+
+/** Output of one slicer step. */
+export interface SliceStep {
+  on: boolean;
+  /** Matched-filter amplitude, normalised to one slot's noise scale. */
+  envelope: number;
+  /** Decision threshold on the same scale. */
+  threshold: number;
+}
+
+/** Highest per-slot SNR the levels may claim (30 dB), so a noiseless file does not divide by zero. */
+const MAX_SLOT_SNR = 1000;
+
+export class LevelSlicer {
+  private readonly w: number;
+  private readonly ringRe: Float64Array;
+  private readonly ringIm: Float64Array;
+  private pos = 0;
+  private sumRe = 0;
+  private sumIm = 0;
+  private steps = 0;
+  /** Tracked full-mark envelope power |S|²/w. */
+  private peakPow: number;
+  /** Tracked noise power of one slot. */
+  private noise: number;
+  private on = false;
+  private offSlots = 0;
+  private readonly alphaSignal: number;
+  private readonly alphaNoise: number;
+  private readonly alphaDecay: number;
+
+  constructor(options: SlicerOptions) {
+    this.w = Math.max(1, Math.round(options.windowSlots));
+    this.ringRe = new Float64Array(this.w);
+    this.ringIm = new Float64Array(this.w);
+    this.noise = Math.max(options.noisePow, options.signalPow / MAX_SLOT_SNR, 1e-30);
+    this.peakPow = this.w * options.signalPow + this.noise;
+    this.alphaSignal = Math.min(1, options.slotMs / 300);
+    this.alphaNoise = Math.min(1, options.slotMs / 1500);
+    this.alphaDecay = Math.min(1, options.slotMs / 4000);
+  }
+
+  /** Carrier power of one slot during a mark (|z|² units). */
+  get signalPow(): number {
+    return Math.max(this.peakPow - this.noise, 0) / this.w;
+  }
+
+  /** Noise power of one slot (|z|² units), never below 1/1000 of the carrier power. */
+  get noisePow(): number {
+    return Math.max(this.noise, this.signalPow / MAX_SLOT_SNR, 1e-30);
+  }
+
+  /** Takes one slot value; returns the decision for the window ending at it. */
+  step(zr: number, zi: number): SliceStep {
+    const w = this.w;
+    const oldRe = this.ringRe[this.pos]!;
+    const oldIm = this.ringIm[this.pos]!;
+    this.sumRe += zr - oldRe;
+    this.sumIm += zi - oldIm;
+    this.ringRe[this.pos] = zr;
+    this.ringIm[this.pos] = zi;
+    this.pos = (this.pos + 1) % w;
+    if (++this.steps % 4096 === 0) {
+      this.sumRe = 0;
+      this.sumIm = 0;
+      for (let i = 0; i < w; i++) {
+        this.sumRe += this.ringRe[i]!;
+        this.sumIm += this.ringIm[i]!;
+      }
+    }
+    const e = (this.sumRe * this.sumRe + this.sumIm * this.sumIm) / w;
+    const noise = this.noisePow;
+    const lo = Math.sqrt(noise) * 0.886; // mean of a Rayleigh amplitude, √(π/4)·σ [analytic]
+    const hi = Math.sqrt(Math.max(this.peakPow, noise));
+    const threshold = 0.5 * (lo + hi);
+    const hyst = 0.1 * (hi - lo);
+    const amp = Math.sqrt(e);
+    this.on = this.on ? amp > threshold - hyst : amp > threshold + hyst;
+    if (this.on) {
+      this.offSlots = 0;
+      if (amp > threshold) this.peakPow += this.alphaSignal * (e - this.peakPow);
+    } else {
+      this.offSlots++;
+      // The slot leaving the window is at least one window away from any mark the slicer saw.
+      if (this.offSlots >= 2 * w) this.noise += this.alphaNoise * (oldRe * oldRe + oldIm * oldIm - this.noise);
+      // Through a fade no mark passes the threshold: let the signal level sink toward the noise.
+      if (this.offSlots > 8 * w) this.peakPow -= this.alphaDecay * (this.peakPow - noise);
+    }
+    return { on: this.on, envelope: amp, threshold };
+  }
+}

@@ -1,0 +1,476 @@
+import { InputError, checkRange } from '../errors.js';
+import type { Interval, Timeline } from '../timeline.js';
+import { Assembler, type DecodedCharacter } from './assemble.js';
+import { estimateTiming, type TimingEstimate } from './estimate-timing.js';
+import { Mixer } from './mixer.js';
+import { LevelSlicer } from './slicer.js';
+import { findTone } from './tone.js';
+import { buildCodeTrie, type CodeTrie } from './trie.js';
+import { SequenceDecoder, type DurationModel, type Segment } from './viterbi.js';
+
+export interface DecodeResult extends Timeline {
+  /** Carrier tone [Hz], or null when no keyed signal was found. */
+  toneHz: number | null;
+  /** Estimated SNR [dB]: key-down carrier power over noise power in 2500 Hz; null without signal. */
+  snrDb: number | null;
+  characters: DecodedCharacter[];
+  warnings: string[];
+  /** Length of the audio [ms]. */
+  durationMs: number;
+  /** Matched-filter envelope and slicer threshold, decimated for plotting (only with `keepEnvelope`). */
+  envelope?: { frameMs: number; values: Float32Array; threshold: Float32Array };
+}
+
+export interface DecodeOptions {
+  /** Carrier tone [Hz]; found automatically when omitted. */
+  toneHz?: number;
+  /** Keep a decimated envelope in the result, for plots. */
+  keepEnvelope?: boolean;
+  /** Progress 0…1 (decodeSamples, or a StreamDecoder told `expectedSamples`). */
+  onProgress?: (fraction: number) => void;
+  /** Called with each piece of text as it becomes final (a character, with a leading space after a word gap). */
+  onText?: (text: string) => void;
+  /** Total input length [samples], when known, for `onProgress`. */
+  expectedSamples?: number;
+}
+
+/** Audio buffered to find the tone and the speed before decoding starts [ms]. */
+export const PREROLL_MS = 6000;
+/** Target length of a mixer frame [ms]. */
+const FRAME_MS = 2.5;
+/** Slots per unit at the starting speed. */
+const SLOTS_PER_UNIT = 4;
+/** Decisions are final this many units after the fact. */
+const LAG_UNITS = 40;
+/** Traceback period [slots]. */
+const COMMIT_EVERY = 16;
+/** Reference bandwidth of keyform's SNR [Hz]. */
+const SNR_BANDWIDTH_HZ = 2500;
+/** Most envelope points kept for plotting. */
+const MAX_ENVELOPE_POINTS = 20000;
+
+const TRIE: CodeTrie = buildCodeTrie();
+
+/**
+ * Streaming receiver: push chunks of mono samples, then `finish()`.
+ *
+ * Chain: pre-roll (tone search with fft.js, speed and level estimate) → quadrature mixer and
+ * boxcar decimator (frames of about 2.5 ms) → slots of about a quarter unit → level slicer
+ * (signal/noise tracking, hysteresis) and tone tracking → sequence decoder (soft decisions, Viterbi
+ * over the code tree with speed tracking) → characters. State is bounded: the pre-roll buffer,
+ * fixed rings, and the output (marks, characters).
+ */
+export class StreamDecoder {
+  private readonly sampleRate: number;
+  private readonly options: DecodeOptions;
+  private readonly warnings: string[] = [];
+  private phase: 'search' | 'run' | 'done' = 'search';
+  private preroll: Float32Array;
+  private preLen = 0;
+  private originSample = 0;
+  private samplesIn = 0;
+  private toneProminenceDb = 0;
+  private noSignalReason: string | null = null;
+
+  private mixer: Mixer | null = null;
+  private frameRe = new Float64Array(0);
+  private frameIm = new Float64Array(0);
+  private frameMs = FRAME_MS;
+  private framesPerSlot = 1;
+  private slotMs = FRAME_MS;
+  private slotRe = 0;
+  private slotIm = 0;
+  private slotFill = 0;
+  private slicer: LevelSlicer | null = null;
+  private decoder: SequenceDecoder | null = null;
+  private assembler: Assembler;
+  private committedSlot = 0;
+  private zRe = new Float64Array(0);
+  private zIm = new Float64Array(0);
+  private toneStartHz = 0;
+  private prevOn = false;
+  private prevRe = 0;
+  private prevIm = 0;
+  private fllRe = 0;
+  private fllIm = 0;
+  private fllMag = 0;
+  private lagSlots = 0;
+  private model: DurationModel | null = null;
+  private stats = { markPow: 0, markSlots: 0, gapPow: 0, gapSlots: 0, unitSum: 0, unitCount: 0, letterGapSum: 0, letterGapCount: 0 };
+  private envValues: number[] = [];
+  private envThreshold: number[] = [];
+  private envDecim = 1;
+  private envAcc = 0;
+  private envThrAcc = 0;
+  private envCount = 0;
+
+  /**
+   * @param sampleRate - Sample rate [Hz], 8000…192000.
+   * @param options - Tone, envelope, progress and live-text callbacks.
+   */
+  constructor(sampleRate: number, options: DecodeOptions = {}) {
+    checkRange('sample rate', sampleRate, 8000, 192_000, 'Hz');
+    if (options.toneHz !== undefined && !(options.toneHz > 0 && options.toneHz < sampleRate / 2)) {
+      throw new InputError(`tone must be above 0 and below sampleRate/2 = ${sampleRate / 2} Hz (got ${options.toneHz})`);
+    }
+    this.sampleRate = sampleRate;
+    this.options = options;
+    this.preroll = new Float32Array(Math.round((PREROLL_MS / 1000) * sampleRate));
+    this.assembler = new Assembler(TRIE, options.onText);
+  }
+
+  /** Feeds the next chunk of samples (mono, any length). */
+  push(chunk: Float32Array): void {
+    if (this.phase === 'done') throw new Error('StreamDecoder: push() after finish()');
+    this.samplesIn += chunk.length;
+    let rest = chunk;
+    while (this.phase === 'search' && rest.length > 0) {
+      const take = Math.min(rest.length, this.preroll.length - this.preLen);
+      this.preroll.set(rest.subarray(0, take), this.preLen);
+      this.preLen += take;
+      rest = rest.subarray(take);
+      if (this.preLen === this.preroll.length) this.tryLock(false);
+    }
+    if (this.phase === 'run' && rest.length > 0) this.mix(rest);
+    if (this.options.onProgress && this.options.expectedSamples) {
+      this.options.onProgress(Math.min(1, this.samplesIn / this.options.expectedSamples));
+    }
+  }
+
+  /** Ends the stream and returns everything decoded. */
+  finish(): DecodeResult {
+    if (this.phase === 'search') this.tryLock(true);
+    if (this.phase === 'run') {
+      this.commit(true);
+      this.assembler.flush();
+    }
+    this.phase = 'done';
+    return this.result();
+  }
+
+  // ---- pre-roll: tone, speed, levels --------------------------------------------------------
+
+  private tryLock(final: boolean): void {
+    const samples = this.preroll.subarray(0, this.preLen);
+    let toneHz = this.options.toneHz;
+    if (toneHz === undefined) {
+      const found = findTone(samples, this.sampleRate);
+      if (!found.found) {
+        if (final) {
+          this.noSignalReason = 'no keyed signal found (no tone stands out of the noise)';
+          this.phase = 'done';
+          return;
+        }
+        // Keep searching: drop the older half of the pre-roll.
+        const half = this.preroll.length >> 1;
+        this.preroll.copyWithin(0, half, this.preLen);
+        this.preLen -= half;
+        this.originSample += half;
+        return;
+      }
+      toneHz = found.toneHz;
+      this.toneProminenceDb = found.prominenceDb;
+    }
+    this.toneStartHz = toneHz;
+    const spf = Math.max(1, Math.round((this.sampleRate * FRAME_MS) / 1000));
+    this.frameMs = (spf * 1000) / this.sampleRate;
+    const mixer = new Mixer(this.sampleRate, toneHz, spf);
+    this.ensureFrameBuffers(samples.length);
+    const nFrames = mixer.process(samples, this.frameRe, this.frameIm);
+    const est = estimateTiming(this.frameRe, this.frameIm, nFrames, this.frameMs);
+    if (!est) {
+      if (!final && this.options.toneHz === undefined) {
+        // A tone but no keying yet (e.g. a steady carrier or the start of the recording): keep looking.
+        const half = this.preroll.length >> 1;
+        this.preroll.copyWithin(0, half, this.preLen);
+        this.preLen -= half;
+        this.originSample += half;
+        return;
+      }
+      this.noSignalReason = `no keyed signal found (${this.options.toneHz === undefined ? `a tone near ${toneHz.toFixed(1)} Hz, but` : `at ${toneHz} Hz:`} no keying)`;
+      this.toneStartHz = toneHz;
+      this.phase = 'done';
+      return;
+    }
+    this.mixer = mixer;
+    this.start(est);
+    this.phase = 'run';
+    const copyRe = this.frameRe.slice(0, nFrames);
+    const copyIm = this.frameIm.slice(0, nFrames);
+    for (let i = 0; i < nFrames; i++) this.frame(copyRe[i]!, copyIm[i]!);
+    this.preroll = new Float32Array(0);
+    this.preLen = 0;
+  }
+
+  private start(est: TimingEstimate): void {
+    this.framesPerSlot = Math.max(1, Math.round(est.unitMs / SLOTS_PER_UNIT / this.frameMs));
+    this.slotMs = this.framesPerSlot * this.frameMs;
+    const k = this.framesPerSlot;
+    const unitSlots = est.unitMs / this.slotMs;
+    this.slicer = new LevelSlicer({
+      windowSlots: Math.max(1, Math.round(unitSlots)),
+      slotMs: this.slotMs,
+      signalPow: est.signalPow * k * k, // coherent sum of k frames
+      noisePow: est.noisePow * k, // noise adds in power
+    });
+    this.model = {
+      dit: est.ditMs / this.slotMs,
+      dah: est.dahMs / this.slotMs,
+      elementGap: est.elementGapMs / this.slotMs,
+      letterGap: est.letterGapMs / this.slotMs,
+      wordGap: est.wordGapMs / this.slotMs,
+    };
+    this.decoder = new SequenceDecoder(TRIE, this.model, 2048);
+    this.lagSlots = Math.min(1024, Math.max(64, Math.round(LAG_UNITS * unitSlots), Math.round(2.5 * this.model.wordGap)));
+    this.zRe = new Float64Array(this.decoder.historySlots);
+    this.zIm = new Float64Array(this.decoder.historySlots);
+    if (this.options.keepEnvelope) this.envDecim = 1;
+  }
+
+  // ---- streaming chain ----------------------------------------------------------------------
+
+  private ensureFrameBuffers(samples: number): void {
+    const need = Math.ceil(samples / Math.max(1, Math.round((this.sampleRate * FRAME_MS) / 1000))) + 2;
+    if (this.frameRe.length < need) {
+      this.frameRe = new Float64Array(need);
+      this.frameIm = new Float64Array(need);
+    }
+  }
+
+  private mix(chunk: Float32Array): void {
+    const mixer = this.mixer!;
+    const block = 1 << 16;
+    for (let off = 0; off < chunk.length; off += block) {
+      const part = chunk.subarray(off, Math.min(chunk.length, off + block));
+      this.ensureFrameBuffers(part.length);
+      const n = mixer.process(part, this.frameRe, this.frameIm);
+      for (let i = 0; i < n; i++) this.frame(this.frameRe[i]!, this.frameIm[i]!);
+    }
+  }
+
+  private frame(re: number, im: number): void {
+    this.slotRe += re;
+    this.slotIm += im;
+    if (++this.slotFill === this.framesPerSlot) {
+      const zr = this.slotRe;
+      const zi = this.slotIm;
+      this.slotRe = 0;
+      this.slotIm = 0;
+      this.slotFill = 0;
+      this.slot(zr, zi);
+    }
+  }
+
+  private slot(zr: number, zi: number): void {
+    const decoder = this.decoder!;
+    const slicer = this.slicer!;
+    const cut = slicer.step(zr, zi);
+    const A2 = slicer.signalPow;
+    const N = slicer.noisePow;
+    const A = Math.sqrt(A2);
+    decoder.step((A / N) * zr, (A / N) * zi, A2 / N);
+    const ti = decoder.t % decoder.historySlots;
+    this.zRe[ti] = zr;
+    this.zIm[ti] = zi;
+    this.trackTone(zr, zi, cut.on);
+    if (this.options.keepEnvelope) this.keepEnvelopePoint(cut.envelope, cut.threshold);
+    if (decoder.t % COMMIT_EVERY === 0) this.commit(false);
+  }
+
+  /** Frequency-locked loop: the phase step between consecutive key-down slots gives the tone offset. */
+  private trackTone(zr: number, zi: number, on: boolean): void {
+    if (on && this.prevOn) {
+      const cr = zr * this.prevRe + zi * this.prevIm;
+      const ci = zi * this.prevRe - zr * this.prevIm;
+      const a = Math.min(1, this.slotMs / 1500);
+      this.fllRe += a * (cr - this.fllRe);
+      this.fllIm += a * (ci - this.fllIm);
+      this.fllMag += a * (Math.hypot(cr, ci) - this.fllMag);
+      const mag = Math.hypot(this.fllRe, this.fllIm);
+      if (this.fllMag > 0 && mag / this.fllMag > 0.5) {
+        const dfHz = Math.atan2(this.fllIm, this.fllRe) / (2 * Math.PI * (this.slotMs / 1000));
+        const gain = Math.min(1, this.slotMs / 6000);
+        const mixer = this.mixer!;
+        const next = Math.max(this.toneStartHz - 80, Math.min(this.toneStartHz + 80, mixer.toneHz + gain * dfHz));
+        if (next > 0 && next < this.sampleRate / 2) mixer.setTone(next);
+      }
+    }
+    this.prevOn = on;
+    this.prevRe = zr;
+    this.prevIm = zi;
+  }
+
+  private keepEnvelopePoint(value: number, threshold: number): void {
+    this.envAcc = Math.max(this.envAcc, value);
+    this.envThrAcc += threshold;
+    if (++this.envCount < this.envDecim) return;
+    this.envValues.push(this.envAcc);
+    this.envThreshold.push(this.envThrAcc / this.envCount);
+    this.envAcc = 0;
+    this.envThrAcc = 0;
+    this.envCount = 0;
+    if (this.envValues.length >= MAX_ENVELOPE_POINTS) {
+      const v: number[] = [];
+      const th: number[] = [];
+      for (let i = 0; i + 1 < this.envValues.length; i += 2) {
+        v.push(Math.max(this.envValues[i]!, this.envValues[i + 1]!));
+        th.push(0.5 * (this.envThreshold[i]! + this.envThreshold[i + 1]!));
+      }
+      this.envValues = v;
+      this.envThreshold = th;
+      this.envDecim *= 2;
+    }
+  }
+
+  /** Milliseconds from the start of the audio at the end of slot `slot`. */
+  private slotToMs(slot: number): number {
+    return ((this.originSample + slot * this.framesPerSlot * this.mixer!.samplesPerFrame) * 1000) / this.sampleRate;
+  }
+
+  /** Makes the decisions older than the lag final (all of them at the end). */
+  private commit(final: boolean): void {
+    const decoder = this.decoder!;
+    const limit = final ? decoder.t : decoder.t - this.lagSlots;
+    if (limit <= this.committedSlot) return;
+    const segments = decoder.traceback(this.committedSlot);
+    for (const seg of segments) {
+      if (seg.endSlot > limit) break;
+      if (seg.endSlot <= this.committedSlot) continue;
+      const s: Segment = seg.startSlot < this.committedSlot ? { ...seg, startSlot: this.committedSlot } : seg;
+      this.account(s);
+      const llr = s.kind === 'idle' ? -10 : decoder.markLlr(s.startSlot, s.endSlot);
+      const confidence = s.kind === 'mark' ? 1 / (1 + Math.exp(-llr)) : 1 / (1 + Math.exp(llr));
+      this.assembler.feed(s, round(this.slotToMs(s.startSlot)), round(this.slotToMs(s.endSlot)), confidence);
+      this.committedSlot = s.endSlot;
+    }
+    if (!final) this.trackSpeed();
+  }
+
+  /** Updates level statistics and the duration model from a decided segment. */
+  private account(s: Segment): void {
+    const d = s.endSlot - s.startSlot;
+    const H = this.decoder!.historySlots;
+    const st = this.stats;
+    if (s.kind === 'mark' || s.kind === 'element-gap' || s.kind === 'letter-gap' || s.kind === 'word-gap') {
+      for (let k = s.startSlot + 2; k <= s.endSlot - 1; k++) {
+        const i = k % H;
+        const p = this.zRe[i]! ** 2 + this.zIm[i]! ** 2;
+        if (s.kind === 'mark') { st.markPow += p; st.markSlots++; } else { st.gapPow += p; st.gapSlots++; }
+      }
+    } else {
+      const i = s.endSlot % H;
+      st.gapPow += this.zRe[i]! ** 2 + this.zIm[i]! ** 2;
+      st.gapSlots++;
+    }
+    const m = this.model!;
+    const a = 0.12;
+    switch (s.kind) {
+      case 'mark':
+        if (TRIE.symbol[s.node] === 1) {
+          m.dah += a * (d - m.dah);
+          st.unitSum += d / 3;
+        } else {
+          m.dit += a * (d - m.dit);
+          st.unitSum += d;
+        }
+        st.unitCount++;
+        break;
+      case 'element-gap':
+        m.elementGap += a * (d - m.elementGap);
+        st.unitSum += d;
+        st.unitCount++;
+        break;
+      case 'letter-gap':
+        m.letterGap += a * (d - m.letterGap);
+        st.letterGapSum += d;
+        st.letterGapCount++;
+        break;
+      case 'word-gap':
+        if (d < 1.3 * m.wordGap) m.wordGap += a * (d - m.wordGap);
+        break;
+      default:
+        break;
+    }
+  }
+
+  private trackSpeed(): void {
+    const m = this.model!;
+    const unit = (m.dit + m.elementGap + m.dah / 3) / 3;
+    m.dit = clamp(m.dit, 0.5 * unit, 1.8 * unit);
+    m.dah = clamp(m.dah, Math.max(2.2 * unit, 1.8 * m.dit), 4.5 * unit);
+    m.elementGap = clamp(m.elementGap, 0.5 * unit, 1.8 * unit);
+    m.letterGap = Math.max(m.letterGap, 2.2 * unit, 1.8 * m.elementGap);
+    m.wordGap = Math.max(m.wordGap, 1.6 * m.letterGap, 5 * unit);
+    for (const key of Object.keys(m) as (keyof DurationModel)[]) m[key] = Math.max(1, m[key]);
+    this.decoder!.setModel(m);
+  }
+
+  // ---- result -------------------------------------------------------------------------------
+
+  private result(): DecodeResult {
+    const durationMs = round((this.samplesIn * 1000) / this.sampleRate);
+    const warnings = [...this.warnings];
+    const a = this.assembler;
+    if (this.noSignalReason !== null || !this.mixer) {
+      warnings.push(this.noSignalReason ?? 'no keyed signal found');
+      return {
+        text: '', wpm: 0, farnsworthWpm: null, unitMs: 0, totalMs: 0, marks: [], toneHz: null, snrDb: null,
+        characters: [], warnings, durationMs,
+      };
+    }
+    const st = this.stats;
+    const unitMs = st.unitCount > 0 ? (st.unitSum / st.unitCount) * this.slotMs : (this.model!.dit) * this.slotMs;
+    const wpm = Math.round((1200 / unitMs) * 10) / 10;
+    let farnsworthWpm: number | null = null;
+    if (st.letterGapCount > 0) {
+      const letterGapMs = (st.letterGapSum / st.letterGapCount) * this.slotMs;
+      if (letterGapMs > 4.5 * unitMs) {
+        // Invert tc = 3·ta/19 and ta = (60c − 37.2s)/(s·c) [QEX 1990] for the overall speed s.
+        const taS = (19 * letterGapMs) / 3 / 1000;
+        farnsworthWpm = Math.round(((60 * wpm) / (taS * wpm + 37.2)) * 10) / 10;
+      }
+    }
+    let snrDb: number | null = null;
+    if (st.markSlots > 0 && st.gapSlots > 0) {
+      const noise = st.gapPow / st.gapSlots;
+      const carrier = st.markPow / st.markSlots - noise;
+      const n = this.framesPerSlot * this.mixer.samplesPerFrame;
+      // A slot sums n samples of x·e^(−jωt)/spf: a sine of amplitude a gives |z|² = (a·k/2)², white
+      // noise of variance v gives k·v/spf. Carrier power a²/2 over noise v·2500/(fs/2) [analytic].
+      if (carrier > 0 && noise > 0) {
+        const ratio = (2 * carrier * this.sampleRate) / (noise * n * 2 * SNR_BANDWIDTH_HZ);
+        snrDb = Math.round(10 * Math.log10(ratio) * 10) / 10;
+      }
+    }
+    if (a.characters.length === 0) warnings.push('no keyed signal found (a tone, but no characters could be decoded)');
+    if (a.characters.some((c) => c.text === '*')) warnings.push('some patterns are not known characters (printed as *)');
+    if (snrDb !== null && snrDb < -10) warnings.push(`weak signal (SNR ${snrDb} dB in 2500 Hz): expect errors`);
+    const marks = a.marks;
+    const result: DecodeResult = {
+      text: a.decodedText,
+      wpm,
+      farnsworthWpm,
+      unitMs: round(unitMs),
+      totalMs: marks.length > 0 ? marks[marks.length - 1]![1] : 0,
+      marks,
+      toneHz: Math.round(this.mixer.toneHz * 10) / 10,
+      snrDb,
+      characters: a.characters,
+      warnings,
+      durationMs,
+    };
+    if (this.options.keepEnvelope) {
+      result.envelope = {
+        frameMs: this.slotMs * this.envDecim,
+        values: Float32Array.from(this.envValues),
+        threshold: Float32Array.from(this.envThreshold),
+      };
+    }
+    return result;
+  }
+}
+
+const round = (ms: number): number => Math.round(ms * 10) / 10;
+const clamp = (x: number, lo: number, hi: number): number => Math.min(hi, Math.max(lo, x));
+
+export type { Interval };

@@ -1,0 +1,297 @@
+import type { CodeTrie } from './trie.js';
+import { lnI0 } from './lni0.js';
+
+/** Mean segment lengths [slots] the decoder expects; updated as the speed is tracked. */
+export interface DurationModel {
+  dit: number;
+  dah: number;
+  elementGap: number;
+  letterGap: number;
+  wordGap: number;
+}
+
+export type SegmentKind = 'mark' | 'element-gap' | 'letter-gap' | 'word-gap' | 'idle';
+
+/** One decided piece of the keying: slots (startSlot, endSlot]. */
+export interface Segment {
+  kind: SegmentKind;
+  startSlot: number;
+  endSlot: number;
+  /** Mark: trie node reached by this element. Letter/word gap: the node of the character it closes. */
+  node: number;
+}
+
+const NEG = -1e300;
+
+/** Spread of each class on a log scale (hand-sent dash/dot ratio 2.5…4 and 20 % jitter fit inside). */
+const SPREAD = { dit: 0.3, dah: 0.3, elementGap: 0.35, letterGap: 0.35, wordGap: 0.35 } as const;
+/** Log prior of the gap after an element (roughly how often each follows a mark in plain text). */
+const GAP_PRIOR = { elementGap: Math.log(0.6), letterGap: Math.log(0.3), wordGap: Math.log(0.1) };
+/** Log penalty of decoding a run that is not a known character. */
+const UNKNOWN_PENALTY = -8;
+
+interface DurationTable {
+  min: number;
+  max: number;
+  logP: Float64Array;
+}
+
+function durationTable(mean: number, spread: number, cap: number): DurationTable {
+  const min = Math.max(1, Math.floor(mean * Math.exp(-2.5 * spread)));
+  const max = Math.max(min, Math.min(cap, Math.ceil(mean * Math.exp(2.5 * spread))));
+  const logP = new Float64Array(max + 1).fill(NEG);
+  let total = 0;
+  for (let d = min; d <= max; d++) total += Math.exp(-((Math.log(d / mean)) ** 2) / (2 * spread * spread));
+  const norm = Math.log(total);
+  for (let d = min; d <= max; d++) logP[d] = -((Math.log(d / mean)) ** 2) / (2 * spread * spread) - norm;
+  return { min, max, logP };
+}
+
+/**
+ * Sequence decoder: a semi-Markov (explicit-duration) Viterbi search over marks and gaps that
+ * walks the code tree, so only runs of elements that form characters are cheap, after the
+ * hidden-Markov decoders of the literature (D. L. Mills 1977; E. L. Bell 1977).
+ *
+ * Each slot brings a soft observation: the slot's complex baseband value weighted by A/σ² and the
+ * energy term A²/σ² (A: carrier amplitude, σ²: noise power). A mark over slots (a, b] scores
+ * ln I0(2·|Σ y|) − Σ q, the log-likelihood ratio of a tone of unknown phase against noise; gaps
+ * score 0 (the noise hypothesis). Durations score by log-normal priors around the tracked means.
+ * State is bounded: a ring of `historySlots` slots of scores and back-pointers.
+ */
+export class SequenceDecoder {
+  readonly historySlots: number;
+  private readonly trie: CodeTrie;
+  private readonly n: number;
+  private readonly nStates: number;
+  private readonly stR: number;
+  private readonly stS: number;
+  private readonly score: Float64Array;
+  private readonly bpDur: Uint16Array;
+  private readonly bpPrev: Int16Array;
+  private readonly yRe: Float64Array;
+  private readonly yIm: Float64Array;
+  private readonly yQ: Float64Array;
+  private readonly bestChar: Float64Array;
+  private readonly bestCharNode: Int16Array;
+  private readonly charPrior: Float64Array;
+  private readonly llr: Float64Array;
+  private tables!: { dit: DurationTable; dah: DurationTable; egap: DurationTable; lgap: DurationTable; wgap: DurationTable };
+  private model!: DurationModel;
+  /** Index of the last slot processed (slot 0 is the start, before any data). */
+  t = 0;
+
+  constructor(trie: CodeTrie, model: DurationModel, historySlots = 2048) {
+    this.trie = trie;
+    this.historySlots = historySlots;
+    this.n = trie.size;
+    this.nStates = 2 * this.n + 2;
+    this.stR = 2 * this.n;
+    this.stS = 2 * this.n + 1;
+    const H = historySlots;
+    this.score = new Float64Array(H * this.nStates).fill(NEG);
+    this.bpDur = new Uint16Array(H * this.nStates);
+    this.bpPrev = new Int16Array(H * this.nStates).fill(-1);
+    this.yRe = new Float64Array(H);
+    this.yIm = new Float64Array(H);
+    this.yQ = new Float64Array(H);
+    this.bestChar = new Float64Array(H).fill(NEG);
+    this.bestCharNode = new Int16Array(H).fill(-1);
+    this.charPrior = new Float64Array(this.n);
+    for (let i = 1; i < this.n; i++) this.charPrior[i] = trie.text[i] !== null ? 0 : UNKNOWN_PENALTY;
+    this.llr = new Float64Array(H);
+    this.score[this.stS] = 0; // slot 0: idle
+    this.setModel(model);
+  }
+
+  /** The duration model in use [slots]. */
+  get durations(): DurationModel {
+    return { ...this.model };
+  }
+
+  /** Replaces the expected segment lengths [slots]. */
+  setModel(model: DurationModel): void {
+    this.model = { ...model };
+    const cap = Math.floor(this.historySlots / 4);
+    this.tables = {
+      dit: durationTable(model.dit, SPREAD.dit, cap),
+      dah: durationTable(model.dah, SPREAD.dah, cap),
+      egap: durationTable(model.elementGap, SPREAD.elementGap, cap),
+      lgap: durationTable(model.letterGap, SPREAD.letterGap, cap),
+      wgap: durationTable(model.wordGap, SPREAD.wordGap, cap),
+    };
+  }
+
+  /**
+   * Advances one slot.
+   * @param yRe - Real part of the weighted observation (A/σ²)·z.
+   * @param yIm - Imaginary part.
+   * @param q - Energy term A²/σ² of the slot, ≥ 0.
+   */
+  step(yRe: number, yIm: number, q: number): void {
+    const H = this.historySlots;
+    const S = this.nStates;
+    const prevT = this.t;
+    const t = ++this.t;
+    const ti = t % H;
+    const pi = prevT % H;
+    this.yRe[ti] = this.yRe[pi]! + yRe;
+    this.yIm[ti] = this.yIm[pi]! + yIm;
+    this.yQ[ti] = this.yQ[pi]! + q;
+    const { dit, dah, egap, lgap, wgap } = this.tables;
+    const score = this.score;
+    const base = ti * S;
+    score.fill(NEG, base, base + S);
+    const maxMark = Math.min(Math.max(dit.max, dah.max), t);
+    const llr = this.llr;
+    for (let d = 1; d <= maxMark; d++) {
+      const ai = (t - d) % H;
+      const dr = this.yRe[ti]! - this.yRe[ai]!;
+      const di = this.yIm[ti]! - this.yIm[ai]!;
+      llr[d] = lnI0(2 * Math.sqrt(dr * dr + di * di)) - (this.yQ[ti]! - this.yQ[ai]!);
+    }
+    const { parent, symbol } = this.trie;
+    const n = this.n;
+    const bpDur = this.bpDur;
+    const bpPrev = this.bpPrev;
+    // Marks: from the gap before them (element gap of the parent, or a letter/word gap at the root).
+    for (let node = 1; node < n; node++) {
+      const table = symbol[node] === 1 ? dah : dit;
+      const p = parent[node]!;
+      const hi = Math.min(table.max, t);
+      let best = NEG;
+      let bestD = 0;
+      let bestPrev = -1;
+      for (let d = table.min; d <= hi; d++) {
+        const ab = ((t - d) % H) * S;
+        let src: number;
+        let srcState: number;
+        if (p === 0) {
+          const r = score[ab + this.stR]!;
+          const s = score[ab + this.stS]!;
+          if (r >= s) { src = r; srcState = this.stR; } else { src = s; srcState = this.stS; }
+        } else {
+          src = score[ab + n + p]!;
+          srcState = n + p;
+        }
+        if (src <= NEG) continue;
+        const v = src + llr[d]! + table.logP[d]!;
+        if (v > best) { best = v; bestD = d; bestPrev = srcState; }
+      }
+      if (bestPrev >= 0) {
+        score[base + node] = best;
+        bpDur[base + node] = bestD;
+        bpPrev[base + node] = bestPrev;
+      }
+    }
+    // Element gaps: after a mark, inside a character.
+    {
+      const hi = Math.min(egap.max, t);
+      for (let node = 1; node < n; node++) {
+        if (this.trie.dotChild[node]! < 0 && this.trie.dashChild[node]! < 0) continue;
+        let best = NEG;
+        let bestD = 0;
+        for (let d = egap.min; d <= hi; d++) {
+          const src = score[((t - d) % H) * S + node]!;
+          if (src <= NEG) continue;
+          const v = src + egap.logP[d]!;
+          if (v > best) { best = v; bestD = d; }
+        }
+        if (bestD > 0) {
+          score[base + n + node] = best + GAP_PRIOR.elementGap;
+          bpDur[base + n + node] = bestD;
+          bpPrev[base + n + node] = node;
+        }
+      }
+    }
+    // Letter and word gaps: close the best character that ended where the gap starts.
+    const closeWith = (table: DurationTable, prior: number, state: number): void => {
+      const hi = Math.min(table.max, t);
+      let best = NEG;
+      let bestD = 0;
+      for (let d = table.min; d <= hi; d++) {
+        const src = this.bestChar[(t - d) % H]!;
+        if (src <= NEG) continue;
+        const v = src + table.logP[d]!;
+        if (v > best) { best = v; bestD = d; }
+      }
+      if (bestD > 0) {
+        score[base + state] = best + prior;
+        bpDur[base + state] = bestD;
+        bpPrev[base + state] = this.bestCharNode[(t - bestD) % H]!;
+      }
+    };
+    closeWith(lgap, GAP_PRIOR.letterGap, this.stR);
+    closeWith(wgap, GAP_PRIOR.wordGap, this.stS);
+    // Idle: a word gap may go on for any length.
+    const idle = score[pi * S + this.stS]!;
+    if (idle > score[base + this.stS]!) {
+      score[base + this.stS] = idle;
+      bpDur[base + this.stS] = 1;
+      bpPrev[base + this.stS] = this.stS;
+    }
+    // Best character ending at this slot, for the gaps that will close it.
+    let bc = NEG;
+    let bcNode = -1;
+    for (let node = 1; node < n; node++) {
+      const v = score[base + node]! + this.charPrior[node]!;
+      if (v > bc) { bc = v; bcNode = node; }
+    }
+    this.bestChar[ti] = bc;
+    this.bestCharNode[ti] = bcNode;
+    // Keep numbers small: shift every live score by the best one now and then.
+    if (t % 256 === 0) {
+      let top = NEG;
+      for (let s = 0; s < S; s++) top = Math.max(top, score[base + s]!);
+      if (top > NEG) {
+        for (let k = 0; k < H * S; k++) if (score[k]! > NEG) score[k] = score[k]! - top;
+        for (let k = 0; k < H; k++) if (this.bestChar[k]! > NEG) this.bestChar[k] = this.bestChar[k]! - top;
+      }
+    }
+  }
+
+  /** Log-likelihood ratio (mark against noise) of slots (a, b], both within the history. */
+  markLlr(a: number, b: number): number {
+    const H = this.historySlots;
+    const ai = a % H;
+    const bi = b % H;
+    const dr = this.yRe[bi]! - this.yRe[ai]!;
+    const di = this.yIm[bi]! - this.yIm[ai]!;
+    return lnI0(2 * Math.sqrt(dr * dr + di * di)) - (this.yQ[bi]! - this.yQ[ai]!);
+  }
+
+  /**
+   * The best path's segments that end after slot `sinceSlot`, oldest first, traced back from the
+   * best state at the current slot. `final` prefers states where a message may end.
+   */
+  traceback(sinceSlot: number): Segment[] {
+    const H = this.historySlots;
+    const S = this.nStates;
+    const n = this.n;
+    const base = (this.t % H) * S;
+    let state = -1;
+    let best = NEG;
+    for (let s = 0; s < S; s++) {
+      const v = this.score[base + s]! + (s >= 1 && s < n ? this.charPrior[s]! : 0);
+      if (v > best) { best = v; state = s; }
+    }
+    const out: Segment[] = [];
+    let tau = this.t;
+    while (state >= 0 && tau > sinceSlot) {
+      const k = (tau % H) * S + state;
+      const d = this.bpDur[k]!;
+      const prev = this.bpPrev[k]!;
+      if (d === 0) break;
+      let kind: SegmentKind;
+      let node: number;
+      if (state < n) { kind = 'mark'; node = state; }
+      else if (state < 2 * n) { kind = 'element-gap'; node = state - n; }
+      else if (state === this.stR) { kind = 'letter-gap'; node = prev; }
+      else if (prev === this.stS && d === 1) { kind = 'idle'; node = -1; }
+      else { kind = 'word-gap'; node = prev; }
+      out.push({ kind, startSlot: tau - d, endSlot: tau, node });
+      tau -= d;
+      state = prev;
+    }
+    return out.reverse();
+  }
+}
