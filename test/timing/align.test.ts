@@ -4,6 +4,7 @@ import { planElementsFromJson } from '../../src/core/measure/timing-plan.js';
 import { planKeying } from '../../src/core/timing/plan.js';
 import { planToJson } from '../../src/io/export.js';
 import type { Interval } from '../../src/core/timeline.js';
+import { keyedMarks, M1677 } from './keyed-marks.js';
 
 const MESSAGE = 'Q7ZKT TEST DE Q3ABC';
 const WPM = 20;
@@ -132,4 +133,43 @@ describe('alignTimelines', () => {
     expect(a.offsetMs).toBeCloseTo(777, 9);
     expect(a.maxErrorMs).toBeCloseTo(0, 6);
   });
+
+  describe('against a hand-sent message', () => {
+    // Sent at 18 wpm against a 20 wpm plan, weight 60 %, dash/dot ratio 3.5, word gaps of 5.5 units
+    // (hand-sent word gaps are often 5–6 units, Gilbert 1969), 6 % of a unit of edge jitter:
+    // edge times drift far apart, so only an alignment that follows the sender pairs them.
+    const text = 'Q7ZKT DE Q3ABC PSE K';
+    const u = 1200 / 18;
+    const hand = { ditMs: 1.2 * u, dahMs: 4.2 * u, elementGapMs: 0.8 * u, letterGapMs: 2.8 * u, wordGapMs: 5.3 * u, edgeJitterMs: 0.06 * u, seed: 5 };
+    const meant = planKeying(text, { wpm: 20 });
+
+    it('pairs every element and reports the longer dashes', () => {
+      const a = alignTimelines({ marks: keyedMarks(text, hand) }, meant);
+      expect(a.missing).toEqual([]);
+      expect(a.extra).toEqual([]);
+      const dahs = a.elements.filter((e) => e.kind === 'dah').map((e) => e.lengthErrorMs!);
+      const expected = hand.dahMs - 3 * (1200 / 20); // sent dash − planned dash (3 units at 20 wpm)
+      const mean = dahs.reduce((x, y) => x + y, 0) / dahs.length;
+      expect(Math.abs(mean - expected)).toBeLessThan(0.06 * u);
+      expect(a.pass).toBe(false);
+    });
+
+    it('finds the one element left out', () => {
+      const marks = keyedMarks(text, hand);
+      // Leave out the dash of the 'K' at the end: the last element.
+      const dropped = marks.length - 1;
+      expect(M1677.K!.at(-1)).toBe('-');
+      const a = alignTimelines({ marks: marks.filter((_, i) => i !== dropped) }, meant);
+      expect(a.extra).toEqual([]);
+      expect(a.missing).toEqual([dropped]);
+      // Leave out the second dot of the 'S' in PSE: which of its three dots is ambiguous, the character is not.
+      const sIndex = meant.characters.findIndex((c, i) => c.text === 'S' && i > 8);
+      const sFirst = meant.elements.findIndex((e) => e.charIndex === sIndex);
+      const b = alignTimelines({ marks: marks.filter((_, i) => i !== sFirst + 1) }, meant);
+      expect(b.extra).toEqual([]);
+      expect(b.missing.length).toBe(1);
+      expect(meant.elements[b.missing[0]!]!.charIndex).toBe(sIndex);
+    });
+  });
 });
+

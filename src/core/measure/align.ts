@@ -7,7 +7,8 @@
 import { checkRange, InputError } from '../errors.js';
 import type { Interval } from '../timeline.js';
 import type { PlannedElement } from '../timing/plan.js';
-import { checkMarks } from './timing.js';
+import { bandedAlign, type BandedAlignResult } from './timing-dp.js';
+import { checkMarks, measureTiming, type GapClass } from './timing.js';
 import { median } from './timing-stats.js';
 
 /** What the alignment needs of a plan: its unit and elements (a KeyingPlan fits). */
@@ -86,7 +87,7 @@ export interface Alignment {
 
 /** Cost of leaving a planned or observed element unpaired, in units of edge error. */
 const SKIP_COST = 2;
-/** Half-width of the search band around the time-nearest observed mark [elements]. */
+/** Half-width of the search band around the expected observed mark [elements]. */
 const BAND = 32;
 
 /** Index of the first value ≥ x in a sorted array. */
@@ -109,77 +110,86 @@ function nearestIndex(sorted: ArrayLike<number>, x: number): number {
 }
 
 /**
- * Pairs observed marks with planned elements by dynamic programming (edit distance with timing
- * costs): pairing costs the edge errors in units, leaving an element unpaired costs `SKIP_COST`.
- * Works in a band around the time-nearest mark, so memory grows with the message, not its square.
- * @returns For each planned element, the index of its observed mark or −1.
+ * Pairs observed marks with planned elements by edge times: planned element j is expected at its
+ * planned times plus `shiftMs(j)` on the observed time base. Pairing costs the two edge errors in
+ * units; leaving an element unpaired costs `SKIP_COST`.
  */
-function pairElements(obs: readonly Interval[], plan: readonly PlannedElement[], offsetMs: number, unit: number): number[] {
+function pairByTime(obs: readonly Interval[], plan: readonly PlannedElement[], shiftMs: (j: number) => number, unit: number): BandedAlignResult {
+  const starts = Float64Array.from(obs, (o) => o[0]);
+  return bandedAlign({
+    n: obs.length,
+    m: plan.length,
+    center: (j) => nearestIndex(starts, plan[j]!.startMs + shiftMs(j)),
+    pairCost: (i, j) => {
+      const d = shiftMs(j);
+      const p = plan[j]!;
+      const o = obs[i]!;
+      const c = (Math.abs(o[0] - d - p.startMs) + Math.abs(o[1] - d - p.endMs)) / unit;
+      return c < 2 * SKIP_COST ? c : Infinity;
+    },
+    skipCost: SKIP_COST,
+    band: BAND,
+  });
+}
+
+const GAP_MISMATCH: Record<GapClass, Record<GapClass, number>> = {
+  element: { element: 0, letter: 0.5, word: 0.5 },
+  letter: { element: 0.5, letter: 0, word: 0.25 },
+  word: { element: 0.5, letter: 0.25, word: 0 },
+};
+
+/**
+ * Pairs by symbols, ignoring absolute time: dot or dash, and the class of the gap after it. Survives
+ * a speed different from the plan's, drift and stretched word gaps, where edge times drift apart.
+ */
+function pairBySymbols(obs: readonly Interval[], plan: readonly PlannedElement[], unit: number): number[] {
+  const seen = measureTiming({ marks: obs }, { unitMsHint: unit }).elements;
+  const meant = measureTiming({ marks: plan.map((p): Interval => [p.startMs, p.endMs]) }, { unitMsHint: unit }).elements;
   const n = obs.length;
   const m = plan.length;
-  const starts = Float64Array.from(obs, (o) => o[0] - offsetMs);
-  // Row j = plan elements consumed; column i = observed marks consumed; row j covers i in [lo[j], hi[j]].
-  const lo = new Int32Array(m + 1);
-  const hi = new Int32Array(m + 1);
-  for (let j = 1; j <= m; j++) {
-    const c = nearestIndex(starts, plan[j - 1]!.startMs) + 1;
-    lo[j] = Math.max(0, c - BAND);
-    hi[j] = Math.min(n, c + BAND);
-  }
-  lo[0] = 0;
-  hi[0] = Math.min(n, BAND);
-  hi[m] = n;
-  for (let j = m - 1; j >= 0; j--) lo[j] = Math.min(lo[j]!, lo[j + 1]!);
-  for (let j = 1; j <= m; j++) hi[j] = Math.max(hi[j]!, hi[j - 1]!);
-  for (let j = m - 1; j >= 0; j--) hi[j] = Math.max(hi[j]!, lo[j + 1]!);
+  return bandedAlign({
+    n,
+    m,
+    center: (j) => (j * n) / m,
+    pairCost: (i, j) => {
+      const a = seen[i]!;
+      const b = meant[j]!;
+      const gap = a.gapAfter === null || b.gapAfter === null ? 0 : GAP_MISMATCH[a.gapAfter][b.gapAfter];
+      return (a.kind === plan[j]!.kind ? 0 : 1) + gap;
+    },
+    skipCost: 1,
+    band: Math.max(BAND, Math.abs(n - m) + BAND),
+  }).pairs;
+}
 
-  const cost: Float64Array[] = [];
-  const from: Uint8Array[] = []; // 1 pair, 2 missing (up), 3 extra (left)
-  const at = (j: number, i: number): number => (i < lo[j]! || i > hi[j]! ? Infinity : cost[j]![i - lo[j]!]!);
-  for (let j = 0; j <= m; j++) {
-    const width = hi[j]! - lo[j]! + 1;
-    const row = new Float64Array(width);
-    const back = new Uint8Array(width);
-    for (let i = lo[j]!; i <= hi[j]!; i++) {
-      let best = j === 0 && i === 0 ? 0 : Infinity;
-      let how = 0;
-      if (j > 0 && i > 0) {
-        const p = plan[j - 1]!;
-        const o = obs[i - 1]!;
-        const pairCost = (Math.abs(o[0] - offsetMs - p.startMs) + Math.abs(o[1] - offsetMs - p.endMs)) / unit;
-        if (pairCost < 2 * SKIP_COST) {
-          const c = at(j - 1, i - 1) + pairCost;
-          if (c < best) [best, how] = [c, 1];
-        }
-      }
-      if (j > 0) {
-        const c = at(j - 1, i) + SKIP_COST;
-        if (c < best) [best, how] = [c, 2];
-      }
-      if (i > lo[j]!) {
-        const c = row[i - 1 - lo[j]!]! + SKIP_COST;
-        if (c < best) [best, how] = [c, 3];
-      }
-      row[i - lo[j]!] = best;
-      back[i - lo[j]!] = how;
+/**
+ * A smooth time map from symbol pairs: the running median (5 pairs) of observed − planned start,
+ * interpolated linearly in planned time between paired elements. Null without pairs.
+ */
+function warpFromPairs(obs: readonly Interval[], plan: readonly PlannedElement[], pairs: readonly number[]): ((j: number) => number) | null {
+  const js = pairs.flatMap((i, j) => (i >= 0 ? [j] : []));
+  if (js.length === 0) return null;
+  const d = js.map((j) => obs[pairs[j]!]![0] - plan[j]!.startMs);
+  // Symmetric windows (narrower at the ends) so that a steady drift is not biased at the ends.
+  const smooth = d.map((_, k) => {
+    const half = Math.min(2, k, d.length - 1 - k);
+    return median(d.slice(k - half, k + half + 1));
+  });
+  const shift = new Float64Array(plan.length);
+  let k = 0;
+  for (let j = 0; j < plan.length; j++) {
+    while (k + 1 < js.length && js[k + 1]! <= j) k++;
+    const j0 = js[k]!;
+    if (j <= j0 || k + 1 >= js.length) shift[j] = smooth[k]!;
+    else {
+      const j1 = js[k + 1]!;
+      const t0 = plan[j0]!.startMs;
+      const t1 = plan[j1]!.startMs;
+      const f = t1 > t0 ? (plan[j]!.startMs - t0) / (t1 - t0) : 0;
+      shift[j] = smooth[k]! + f * (smooth[k + 1]! - smooth[k]!);
     }
-    cost.push(row);
-    from.push(back);
   }
-  const pairs = new Array<number>(m).fill(-1);
-  let j = m;
-  let i = n;
-  while (j > 0 || i > 0) {
-    const how = from[j]![i - lo[j]!]!;
-    if (how === 1) {
-      pairs[j - 1] = i - 1;
-      j--;
-      i--;
-    } else if (how === 2) j--;
-    else if (how === 3) i--;
-    else throw new Error('alignment backtrack left its band'); // cannot happen: bands are connected
-  }
-  return pairs;
+  return (j) => shift[j]!;
 }
 
 /** A first offset: the start difference under which most planned starts meet an observed start. */
@@ -232,24 +242,41 @@ export function alignTimelines(observed: { marks: readonly Interval[] }, plan: P
   const obs = observed.marks;
   const elementsIn = plan.elements;
 
-  let offsetMs: number;
+  const unpaired = (r: BandedAlignResult): number => {
+    const paired = r.pairs.filter((i) => i >= 0).length;
+    return elementsIn.length - paired + (obs.length - paired);
+  };
   let pairs: number[];
   if (options.offsetMs !== undefined) {
-    offsetMs = checkRange('offset', options.offsetMs, -1e12, 1e12, 'ms');
-    pairs = pairElements(obs, elementsIn, offsetMs, unit);
+    const fixed = checkRange('offset', options.offsetMs, -1e12, 1e12, 'ms');
+    pairs = pairByTime(obs, elementsIn, () => fixed, unit).pairs;
   } else {
-    offsetMs = roughOffset(obs, elementsIn, unit);
-    pairs = pairElements(obs, elementsIn, offsetMs, unit);
-    // Refine: the median start difference of paired elements (robust to a few wrong starts).
+    // Candidate 1: one offset for the whole message, refined by the median start difference.
+    let offset = roughOffset(obs, elementsIn, unit);
+    let byOffset = pairByTime(obs, elementsIn, () => offset, unit);
     for (let round = 0; round < 3; round++) {
-      const diffs = pairs.flatMap((i, j) => (i >= 0 ? [obs[i]![0] - elementsIn[j]!.startMs] : []));
-      if (diffs.length === 0) break;
-      const next = median(diffs);
-      if (next === offsetMs) break;
-      offsetMs = next;
-      pairs = pairElements(obs, elementsIn, offsetMs, unit);
+      const diffs = byOffset.pairs.flatMap((i, j) => (i >= 0 ? [obs[i]![0] - elementsIn[j]!.startMs] : []));
+      if (diffs.length === 0 || median(diffs) === offset) break;
+      offset = median(diffs);
+      byOffset = pairByTime(obs, elementsIn, () => offset, unit);
     }
+    pairs = byOffset.pairs;
+    // Candidate 2: edge times against a time map that follows the observation (other speed,
+    // drift, longer gaps). Candidate 3: the symbol pairs themselves, for timing too far from the
+    // plan for edge times to pair. The fewest unpaired elements win; ties go to edge times.
+    const bySymbols = pairBySymbols(obs, elementsIn, unit);
+    let best = unpaired(byOffset);
+    const warp = warpFromPairs(obs, elementsIn, bySymbols);
+    if (warp !== null) {
+      const byWarp = pairByTime(obs, elementsIn, warp, unit);
+      const a = unpaired(byWarp);
+      if (a < best || (a === best && byWarp.cost < byOffset.cost - 1e-9)) [pairs, best] = [byWarp.pairs, a];
+    }
+    if (unpaired({ pairs: bySymbols, cost: 0 }) < best) pairs = bySymbols;
   }
+  // The offset removed: given, or the median start difference of paired elements (robust to a few wrong starts).
+  const diffs = pairs.flatMap((i, j) => (i >= 0 ? [obs[i]![0] - elementsIn[j]!.startMs] : []));
+  const offsetMs = options.offsetMs ?? (diffs.length > 0 ? median(diffs) : 0);
 
   const toleranceMs = (tolerancePct / 100) * unit;
   const pct = (ms: number): number => (100 * ms) / unit;

@@ -63,7 +63,7 @@ export interface XdbBandwidth {
   /** Width [Hz]; when only one side lies inside the span, twice that side (symmetric spectrum assumed). */
   widthHz: number | null;
   /** Which sides the width rests on. */
-  basis: 'both sides' | 'upper side only' | 'lower side only' | 'beyond the span';
+  basis: 'both sides' | 'upper side only' | 'lower side only' | 'beyond the span' | 'below the noise floor';
 }
 
 /**

@@ -30,6 +30,12 @@ export interface ChirpOptions {
   windowMs?: number;
   /** Length of each frequency average [ms], 0.1…10; default 0.5. */
   averageMs?: number;
+  /**
+   * The envelope's own 10–90 % response to a hard step [ms]. An edge not much slower than that has
+   * sidebands reaching past the analysis band (and the tone's mirror image), which shows as a false
+   * phase swing; for such marks the search starts once the edge has settled (90 % point + 2× this).
+   */
+  resolutionMs?: number;
 }
 
 export interface MarkChirp {
@@ -46,7 +52,8 @@ export interface MarkChirp {
 /**
  * Measures each mark's chirp: the settled tone is the power-weighted mean frequency over the
  * mark's later part; the chirp is the largest deviation from it among `averageMs` averages centred
- * every averageMs/2 from the 50 % key-down point to `windowMs` after it.
+ * every averageMs/2 from the 50 % key-down point (later for near-hard edges, see `resolutionMs`) to
+ * `windowMs` after it.
  * @param bb - Complex baseband of the recording (see complexBaseband).
  * @param sampleRate - Sample rate [Hz].
  * @param marks - Marks from measureEdges; only marks with a measured rise are used.
@@ -68,7 +75,10 @@ export function measureChirp(bb: Baseband, sampleRate: number, marks: readonly M
     let best = 0;
     let atMs = 0;
     const end = Math.min(windowMs, 0.5 * D);
-    for (let t = 0; t <= end + 1e-9; t += averageMs / 2) {
+    const res = options.resolutionMs ?? 0;
+    const hardish = res > 0 && m.rise.rise10to90Ms < 3 * res;
+    const startMs = hardish ? m.rise.levelTimesMs.p90 - m.rise.levelTimesMs.p50 + 2 * res : 0;
+    for (let t = startMs; t <= end + 1e-9; t += averageMs / 2) {
       const c = (a + t) * perMs;
       const f = meanFrequencyHz(bb, sampleRate, c - (averageMs / 2) * perMs, c + (averageMs / 2) * perMs);
       if (f === null) continue;

@@ -89,7 +89,7 @@ export interface MaskViolation {
   /** The mask point starting the stretch that was exceeded [Hz]. */
   pointOffsetHz: number;
   /** Where the worst excess in that stretch was, signed (negative: below the carrier) [Hz]. */
-  atOffsetHz: number;
+  offsetHz: number;
   /** The limit there and the measured level [dBc]. */
   limitDbc: number;
   measuredDbc: number;
@@ -105,15 +105,19 @@ export interface MaskVerdict {
   worstExcessDb: number | null;
   /** Mask points farther out than the analysed spectrum reaches on both sides (not checked). */
   uncheckedPointsHz: number[];
+  /** Mask points whose stretch lies (partly) below the recording's noise floor, where the transmitter could not be checked. */
+  noiseLimitedPointsHz: number[];
 }
 
 /**
  * Checks a spectrum (offsets from the carrier and levels in dBc) against a mask: each stretch from one
- * mask point to the next (and beyond the last) reports its worst excess if it has one.
+ * mask point to the next (and beyond the last) reports its worst excess if it has one. With
+ * `noiseDbc` (the recording's noise floor per bin), bins within 3 dB of the floor are not judged.
  * @example checkMask(offsets, dbc, DEFAULT_MASK).pass //=> true for 5 ms raised-cosine edges at 20 wpm
  */
-export function checkMask(offsetHz: ArrayLike<number>, dbc: ArrayLike<number>, mask: SpectralMask): MaskVerdict {
+export function checkMask(offsetHz: ArrayLike<number>, dbc: ArrayLike<number>, mask: SpectralMask, noiseDbc?: ArrayLike<number>): MaskVerdict {
   const pts = mask.points;
+  const noiseLimited = new Set<number>();
   const worst: Array<MaskViolation | null> = pts.map(() => null);
   let worstExcess: number | null = null;
   let reach = 0;
@@ -125,10 +129,15 @@ export function checkMask(offsetHz: ArrayLike<number>, dbc: ArrayLike<number>, m
     if (limit === null) continue;
     let i = 0;
     while (i + 1 < pts.length && d >= pts[i + 1]!.offsetHz) i++;
+    // Within 3 dB of the noise floor the level is the recording's, not the transmitter's.
+    if (noiseDbc && dbc[k]! < noiseDbc[k]! + 3) {
+      if (limit < noiseDbc[k]! + 3) noiseLimited.add(pts[i]!.offsetHz);
+      continue;
+    }
     const excess = dbc[k]! - limit;
     if (worstExcess === null || excess > worstExcess) worstExcess = excess;
     if (excess > 0 && (worst[i] === null || excess > worst[i]!.excessDb)) {
-      worst[i] = { pointOffsetHz: pts[i]!.offsetHz, atOffsetHz: f, limitDbc: limit, measuredDbc: dbc[k]!, excessDb: excess };
+      worst[i] = { pointOffsetHz: pts[i]!.offsetHz, offsetHz: f, limitDbc: limit, measuredDbc: dbc[k]!, excessDb: excess };
     }
   }
   const violations = worst.filter((v): v is MaskViolation => v !== null);
@@ -138,5 +147,6 @@ export function checkMask(offsetHz: ArrayLike<number>, dbc: ArrayLike<number>, m
     violations,
     worstExcessDb: worstExcess,
     uncheckedPointsHz: pts.filter((p) => p.offsetHz > reach).map((p) => p.offsetHz),
+    noiseLimitedPointsHz: [...noiseLimited].sort((a, b) => a - b),
   };
 }

@@ -25,7 +25,7 @@ export interface Baseband {
   re: Float32Array;
   /** Quadrature part. */
   im: Float32Array;
-  /** Pass band actually used [Hz, absolute frequencies] (clipped by 0 Hz and sampleRate/2). */
+  /** Pass band actually used [Hz, absolute frequencies]: tone ± the half band, narrowed to stay clear of 0 Hz and sampleRate/2. */
   passBandHz: [lowHz: number, highHz: number];
   /** Width of the raised-cosine taper outside the pass band [Hz]. */
   taperHz: number;
@@ -55,8 +55,11 @@ export function complexBaseband(samples: Float32Array, sampleRate: number, optio
   const halfBandHz = checkRange('envelope half band', options.halfBandHz ?? 4000, 100, 20_000, 'Hz');
   const nyq = sampleRate / 2;
   const taperHz = Math.max(10, Math.min(200, 0.25 * toneHz, 0.25 * (nyq - toneHz)));
-  const lowHz = Math.max(toneHz - halfBandHz, taperHz);
-  const highHz = Math.min(toneHz + halfBandHz, nyq - taperHz);
+  // Symmetric about the tone: a symmetric band keeps an amplitude-modulated tone's baseband real,
+  // so edges do not show up as false phase (chirp) excursions.
+  const sideHz = Math.max(1, Math.min(halfBandHz, toneHz - taperHz, nyq - toneHz - taperHz));
+  const lowHz = toneHz - sideHz;
+  const highHz = toneHz + sideHz;
   const N0 = samples.length;
   const re = new Float32Array(N0);
   const im = new Float32Array(N0);

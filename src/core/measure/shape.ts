@@ -6,13 +6,14 @@
  */
 import { checkRange, InputError } from '../errors.js';
 import { type EdgeKind, EDGE_KINDS } from '../signal/edges.js';
+import type { Interval } from '../timeline.js';
 import { synthesizeTone } from '../signal/synth.js';
 import { planKeying } from '../timing/plan.js';
 import { modulationRateBaud, wpmFromUnitMs } from '../timing/speed.js';
 import { emissionDesignator, necessaryBandwidthHz, occupiedBandwidth, powerDb, xDbBandwidth, type XdbBandwidth } from './bandwidth.js';
 import { measureChirp } from './chirp.js';
 import { classifyEdge, measureEdges, sortedCopy, spreadOf, traceEdges, type EdgeAnalysis, type EdgeKindEstimate, type EdgeTraces } from './edges.js';
-import { checkMask, DEFAULT_MASK, validateMask, type MaskVerdict, type SpectralMask } from './mask.js';
+import { checkMask, DEFAULT_MASK, validateMask, type MaskPoint, type MaskVerdict, type SpectralMask } from './mask.js';
 import { complexBaseband, magnitude } from './shape-analytic.js';
 import { densityAt, noiseDensityFromGaps } from './shape-noise.js';
 import { findTonePeak, segmentLengthForRbw, welchSpectrum, type PowerSpectrum } from './spectrum.js';
@@ -90,7 +91,7 @@ export interface ShapeReport {
   designator: string | null;
   occupiedToNecessary: number | null;
   necessaryNote: string;
-  mask: MaskVerdict & { shortestPassingRiseMs: number | null; sweepEdge: EdgeKind };
+  mask: MaskVerdict & { points: MaskPoint[]; shortestRiseMs: number | null; sweepEdge: EdgeKind };
   edges: EdgeTraces;
   warnings: string[];
   notes: string[];
@@ -172,12 +173,14 @@ function spectralFigures(
   }
   const occupied = occupiedBandwidth({ offsetHz: offsets, power: clean, binHz });
   const uncorrected = occupiedBandwidth({ offsetHz: offsets, power, binHz });
-  const noiseFloorDbc = noiseApplied && ref > 0 ? powerDb(sortedCopy(floor)[Math.floor(floor.length / 2)]! / ref) : null;
-  const xdb = {
-    '20': xDbBandwidth(offsets, dbc, 20),
-    '40': xDbBandwidth(offsets, dbc, 40),
-    '60': xDbBandwidth(offsets, dbc, 60),
+    const noiseDbc = floor.map((nb) => powerDb(nb / (ref || 1)));
+  const medianNoiseDbc = noiseApplied ? sortedCopy(noiseDbc)[Math.floor(noiseDbc.length / 2)]! : -Infinity;
+  const xdbAt = (x: number): XdbBandwidth => {
+    const r = xDbBandwidth(offsets, dbc, x);
+    // A level within 3 dB of the noise floor cannot be told from the noise.
+    return -x < medianNoiseDbc + 3 ? { lowerHz: null, upperHz: null, widthHz: null, basis: 'below the noise floor' } : r;
   };
+  const xdb = { '20': xdbAt(20), '40': xdbAt(40), '60': xdbAt(60) };
   const clicks: ClickLevel[] = CLICK_OFFSETS_HZ.map((offsetHz) => {
     const levelNear = (f: number): number | null => {
       let best: number | null = null;
@@ -186,16 +189,21 @@ function spectralFigures(
     };
     return { offsetHz, lowerDbc: levelNear(-offsetHz), upperDbc: levelNear(offsetHz) };
   });
-  const verdict = checkMask(offsets, dbc, mask);
-  return { spectrum, offsets, dbc, referencePower: ref, occupied, uncorrected, noiseApplied, noiseFloorDbc, xdb, clicks, verdict };
+  const verdict = checkMask(offsets, dbc, mask, noiseApplied ? noiseDbc : undefined);
+  return { spectrum, offsets, dbc, referencePower: ref, occupied, uncorrected, noiseApplied, noiseFloorDbc: noiseApplied ? medianNoiseDbc : null, xdb, clicks, verdict };
 }
+
+/** Shortest element or gap taken as keying when estimating the unit [ms]. */
+export const MIN_ELEMENT_MS = 8;
 
 /** Unit length from the marks and gaps: the median short mark and short gap (element gap = 1 unit). */
 export function estimateUnitMs(marks: ReadonlyArray<{ startMs: number; endMs: number }>): number | null {
   if (marks.length === 0) return null;
-  const durations = marks.map((m) => m.endMs - m.startMs);
+  // Runs shorter than 8 ms (faster than 100 wpm allows, even hand-sent) are noise, not elements.
+  const durations = marks.map((m) => m.endMs - m.startMs).filter((d) => d >= MIN_ELEMENT_MS);
   const gaps: number[] = [];
   for (let i = 1; i < marks.length; i++) gaps.push(marks[i]!.startMs - marks[i - 1]!.endMs);
+  gaps.splice(0, gaps.length, ...gaps.filter((g) => g >= MIN_ELEMENT_MS));
   const shortMedian = (xs: number[]): number | null => {
     if (xs.length === 0) return null;
     const s = sortedCopy(xs);
@@ -255,7 +263,7 @@ function composeReport(input: ShapeInputs, options: ShapeOptions, analysis: { ed
     );
   }
   const overs = measured.map((m) => m.overshootPct);
-  const chirps = measureChirp(baseband, sampleRate, edges.marks, { windowMs: options.chirpWindowMs });
+  const chirps = measureChirp(baseband, sampleRate, edges.marks, { windowMs: options.chirpWindowMs, resolutionMs });
   const chirpValues = chirps.map((c) => c.chirpHz);
   let worstChirp: number | null = null;
   for (const c of chirpValues) if (worstChirp === null || Math.abs(c) > Math.abs(worstChirp)) worstChirp = c;
@@ -292,7 +300,7 @@ function composeReport(input: ShapeInputs, options: ShapeOptions, analysis: { ed
   const sweepEdge: EdgeKind = edgeKind === 'linear' || edgeKind === 'exponential' ? edgeKind : 'raised-cosine';
   if ((options.findShortestRise ?? true) && wpm !== null && wpm >= 1 && wpm <= 100) {
     const sweep = sweepRise({ wpm, edge: sweepEdge, k, mask, onProgress: (f) => progress(0.8 + 0.2 * f) });
-    shortest = sweep.shortestPassingRiseMs;
+    shortest = sweep.shortestRiseMs;
   }
   progress(1);
 
@@ -363,7 +371,7 @@ function composeReport(input: ShapeInputs, options: ShapeOptions, analysis: { ed
       `ITU-R SM.1138: Bn = B·K for on-off keyed telegraphy, B = 1/unit = ${baud?.toFixed(2) ?? '?'} baud from the ${input.unit.source} timing, K = ${k} ` +
       `(${k === 5 ? 'fading circuit' : k === 3 ? 'non-fading circuit' : 'as given'}). The Recommendation's own example uses the traditional conversion B ≈ 0.8 × wpm ` +
       '(25 wpm → 20 baud → 100 Hz, 100HA1AAN). Keyed signals with sensible shaping usually occupy somewhat more than Bn: information, not a verdict.',
-    mask: { ...fig.verdict, shortestPassingRiseMs: shortest, sweepEdge },
+    mask: { ...fig.verdict, worstExcessDb: round(fig.verdict.worstExcessDb, 2), violations: fig.verdict.violations.map((v) => ({ ...v, offsetHz: round(v.offsetHz, 1)!, limitDbc: round(v.limitDbc, 2)!, measuredDbc: round(v.measuredDbc, 2)!, excessDb: round(v.excessDb, 2)! })), points: mask.points, shortestRiseMs: shortest, sweepEdge },
     edges: traces,
     warnings,
     notes: [FILTER_NOTE, CAUTION],
@@ -413,6 +421,8 @@ export interface PredictOptions extends Omit<ShapeOptions, 'toneHz' | 'unitMs'> 
   edge: EdgeKind;
   /** Text keyed for the prediction; default 'PARIS PARIS' (the standard word). */
   text?: string;
+  /** Key-down intervals [ms] to use instead of planning `text` (e.g. a plan the caller already has). */
+  marks?: Interval[];
   /** Optional chirp model: tone offset [Hz] at t ms after each key-down. */
   chirp?: (msSinceKeyDown: number) => number;
 }
@@ -425,7 +435,7 @@ function synthesizePrediction(o: PredictOptions): { samples: Float32Array; unitM
   if (!(EDGE_KINDS as readonly string[]).includes(o.edge)) throw new InputError(`edge must be one of ${EDGE_KINDS.join(', ')} (got '${o.edge}')`);
   const plan = planKeying(o.text ?? 'PARIS PARIS', { wpm: o.wpm, farnsworthWpm: o.farnsworthWpm ?? null });
   const tone = synthesizeTone({
-    marks: plan.marks,
+    marks: o.marks && o.marks.length > 0 ? o.marks : plan.marks,
     sampleRate: PREDICT_SAMPLE_RATE,
     toneHz: PREDICT_TONE_HZ,
     levelDb: -6,
@@ -473,8 +483,8 @@ export interface SweepOptions {
 export interface SweepRow {
   riseMs: number;
   occupiedBandwidthHz: number | null;
-  bandwidthAt40DbcHz: number | null;
-  maskPass: boolean;
+  at40DbcHz: number | null;
+  pass: boolean;
   worstExcessDb: number | null;
 }
 
@@ -485,13 +495,13 @@ export interface SweepResult {
   necessaryBandwidthHz: number;
   rows: SweepRow[];
   /** Shortest rise time in the table from which every longer one meets the mask [ms], or null. */
-  shortestPassingRiseMs: number | null;
+  shortestRiseMs: number | null;
 }
 
 /**
  * Rise time against occupied and −40 dBc bandwidth at a given speed, with the shortest rise time that
  * meets the mask (spectral figures only; no edge or chirp analysis).
- * @example sweepRise({ wpm: 20, edge: 'raised-cosine' }).shortestPassingRiseMs //=> a few ms
+ * @example sweepRise({ wpm: 20, edge: 'raised-cosine' }).shortestRiseMs //=> a few ms
  */
 export function sweepRise(options: SweepOptions): SweepResult {
   checkRange('wpm', options.wpm, 1, 100, 'wpm');
@@ -507,21 +517,21 @@ export function sweepRise(options: SweepOptions): SweepResult {
     rows.push({
       riseMs,
       occupiedBandwidthHz: fig.occupied ? round(fig.occupied.widthHz, 1) : null,
-      bandwidthAt40DbcHz: round(fig.xdb['40'].widthHz, 1),
-      maskPass: fig.verdict.pass,
+      at40DbcHz: round(fig.xdb['40'].widthHz, 1),
+      pass: fig.verdict.pass,
       worstExcessDb: round(fig.verdict.worstExcessDb, 1),
     });
     options.onProgress?.((i + 1) / rises.length);
   });
   let shortest: number | null = null;
   const byRise = [...rows].sort((a, b) => a.riseMs - b.riseMs);
-  for (let i = byRise.length - 1; i >= 0 && byRise[i]!.maskPass; i--) shortest = byRise[i]!.riseMs;
+  for (let i = byRise.length - 1; i >= 0 && byRise[i]!.pass; i--) shortest = byRise[i]!.riseMs;
   return {
     wpm: options.wpm,
     edge: options.edge,
     mask: mask.name,
     necessaryBandwidthHz: round(necessaryBandwidthHz(modulationRateBaud(unitMs), options.k ?? 5), 2)!,
     rows,
-    shortestPassingRiseMs: shortest,
+    shortestRiseMs: shortest,
   };
 }
