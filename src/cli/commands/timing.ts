@@ -3,6 +3,7 @@ import { InputError } from '../../core/errors.js';
 import { alignTimelines, type Alignment, type PlanElements } from '../../core/measure/align.js';
 import { measureTiming, type ClassStats, type TimingReport } from '../../core/measure/timing.js';
 import { planElementsFromJson } from '../../core/measure/timing-plan.js';
+import { decodeSamples, pickChannel } from '../../core/receive/index.js';
 import type { Interval } from '../../core/timeline.js';
 import { parseCapture } from '../../io/capture.js';
 import { readInputFile } from '../../io/files.js';
@@ -10,6 +11,7 @@ import { formatJson } from '../../io/json.js';
 import { decodeWavBytes } from '../../io/wav-read.js';
 import type { CommandContext } from '../io.js';
 import { numberIn } from '../options.js';
+import { createProgress } from '../progress.js';
 import { addPlanOptions, messageFrom, planFromCli, type EncodeCliOptions } from './encode.js';
 
 interface TimingCliOptions extends Omit<EncodeCliOptions, 'tone'> {
@@ -32,34 +34,16 @@ interface Observed {
   warnings: string[];
 }
 
-/** The receiver's contract (src/core/receive/index.ts), loaded only for WAV input. */
-interface Receiver {
-  decodeSamples(
-    samples: Float32Array,
-    sampleRate: number,
-    options?: { toneHz?: number },
-  ): { text: string; wpm: number; unitMs: number; marks: Interval[]; toneHz: number | null; snrDb: number | null; warnings: string[]; durationMs: number };
-  pickChannel(channels: Float32Array[], sampleRate: number): { index: number; reason: string };
-}
-
-async function loadReceiver(): Promise<Receiver> {
-  const path = '../../core/receive/index.js';
-  try {
-    return (await import(path)) as Receiver;
-  } catch (err) {
-    if ((err as NodeJS.ErrnoException).code !== 'ERR_MODULE_NOT_FOUND') throw err;
-    throw new InputError('WAV input needs the receiver, which is not part of this build; use a logic capture (CSV) instead');
-  }
-}
-
-async function readObserved(path: string, o: TimingCliOptions): Promise<Observed> {
+async function readObserved(path: string, o: TimingCliOptions, ctx: CommandContext): Promise<Observed> {
   const bytes = await readInputFile(path);
   const head = bytes.subarray(0, 4).toString('latin1');
   if (head === 'RIFF') {
     const audio = decodeWavBytes(path, bytes);
-    const rx = await loadReceiver();
-    const pick = audio.channels.length > 1 ? rx.pickChannel(audio.channels, audio.sampleRate) : { index: 0, reason: 'mono' };
-    const result = rx.decodeSamples(audio.channels[pick.index]!, audio.sampleRate, o.tone !== undefined ? { toneHz: o.tone } : {});
+    const pick = pickChannel(audio.channels, audio.sampleRate);
+    const samples = audio.channels[pick.index]!;
+    const progress = createProgress(ctx.io, { label: path, audioSeconds: samples.length / audio.sampleRate });
+    const result = decodeSamples(samples, audio.sampleRate, { ...(o.tone !== undefined ? { toneHz: o.tone } : {}), onProgress: (f) => progress.update(f) });
+    progress.done();
     if (result.marks.length === 0) throw new InputError(`${path}: no keyed tone found`);
     return {
       kind: 'wav',
@@ -248,7 +232,7 @@ local regulations; mind RF exposure.`,
     )
     .action(async (input: string, o: TimingCliOptions) => {
       const plan = await expectedPlan(o, ctx);
-      const observed = await readObserved(input, o);
+      const observed = await readObserved(input, o, ctx);
       for (const w of observed.warnings) ctx.warn(w);
       const report = measureTiming(
         { marks: observed.marks },
