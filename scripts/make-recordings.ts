@@ -51,9 +51,9 @@ export const RECORDINGS: readonly RecordingSpec[] = [
   },
   {
     file: 'contact-hand-keyed.wav',
-    about: 'a hand-keyed contact: speed drifting from 16 to 21 wpm, heavy dashes, uneven spacing',
+    about: 'a hand-keyed contact: speed drifting from 16 to 21 wpm, heavy dashes (3.4 dots), 12 % timing jitter',
     text: 'Q9XYZ DE Q3ABC GM UR 579 NAME ANN <KN>', sampleRate: 8000, toneHz: 620, wpm: 16, edge: 'raised-cosine', riseMs: 4,
-    snrDb: 25, seed: 103, hand: { startWpm: 16, endWpm: 21, dahDitRatio: 3.4, jitterPct: 12, wordGapUnits: 6 },
+    snrDb: 25, seed: 103, hand: { startWpm: 16, endWpm: 21, dahDitRatio: 3.4, jitterPct: 12, wordGapUnits: 7 },
   },
   {
     file: 'beacon-weak.wav',
@@ -62,9 +62,9 @@ export const RECORDINGS: readonly RecordingSpec[] = [
   },
   {
     file: 'test-fading.wav',
-    about: 'a test transmission through a fading path: 20 dB slow fades every 4 s, 15 dB SNR at the peaks',
-    text: 'TEST DE Q7ZKT Q7ZKT <AR>', sampleRate: 8000, toneHz: 750, wpm: 20, edge: 'raised-cosine', riseMs: 5, snrDb: 15, seed: 105,
-    fading: { periodS: 4, depthDb: 20 },
+    about: 'a test transmission through a fading path: 12 dB slow fades every 4 s, 20 dB SNR at the peaks',
+    text: 'TEST DE Q7ZKT Q7ZKT <AR>', sampleRate: 8000, toneHz: 750, wpm: 20, edge: 'raised-cosine', riseMs: 5, snrDb: 20, seed: 105,
+    fading: { periodS: 4, depthDb: 12 },
   },
 ];
 

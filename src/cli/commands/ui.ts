@@ -1,16 +1,45 @@
+import { existsSync } from 'node:fs';
 import type { Command } from 'commander';
+import { InputError } from '../../core/errors.js';
 import type { CommandContext } from '../io.js';
 
-/** Opens the interactive app (placeholder until the app is built). */
-export async function runUi(ctx: CommandContext, _target: string | undefined): Promise<number> {
-  ctx.warn('the interactive app is not built yet; see keyform --help');
-  return 1;
+/**
+ * Opens the interactive app (Ink + React, loaded only here) on a recording, a folder of recordings,
+ * or by default the bundled `recordings/` folder. Needs a terminal on stdin and stdout.
+ */
+export async function runUi(ctx: CommandContext, target: string | undefined): Promise<number> {
+  if (!ctx.io.stdout.isTTY || !ctx.io.stdin.isTTY) {
+    throw new InputError('the interactive app needs a terminal; for scripts use encode, decode, timing or shape (see keyform --help)');
+  }
+  if (target !== undefined && !existsSync(target)) throw new InputError(`${target}: no such file or folder`);
+  const { startApp } = await import('../../tui/run.js');
+  return startApp({
+    target,
+    stdout: ctx.io.stdout as NodeJS.WriteStream,
+    stdin: ctx.io.stdin as NodeJS.ReadStream,
+    stderr: ctx.io.stderr as NodeJS.WriteStream,
+    env: ctx.io.env,
+  });
 }
 
 export function registerUi(program: Command, ctx: CommandContext): void {
   program
     .command('ui [target]')
-    .description('open the interactive app on a recording or folder')
+    .summary('open the interactive app (plan, read back, shape)')
+    .description(
+      'Open the interactive app in this terminal: plan a message, read back a recording, check the keying shape.\n' +
+        'TARGET is a WAV recording (opened at once) or a folder of them; by default ./recordings.\n' +
+        'Keys are shown in the footer; ? lists them all; q or Ctrl-C leaves.',
+    )
+    .addHelpText(
+      'after',
+      `
+Examples:
+  keyform ui                                    the app on ./recordings
+  keyform ui recordings/beacon-after-fix.wav    open a recording in Read back
+
+Transmitting needs a licence and must follow your local regulations; isolate keying lines.`,
+    )
     .action(async (target?: string) => {
       ctx.setExitCode(await runUi(ctx, target));
     });

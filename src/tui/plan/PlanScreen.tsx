@@ -1,0 +1,150 @@
+import React from 'react';
+import { Box, Text } from 'ink';
+import type { KeyingPlan } from '../../core/timing/plan.js';
+import { SAFETY_NOTE } from '../../io/export.js';
+import { colorFor, SYMBOLS, type Theme } from '../theme.js';
+import { StatusLine } from '../widgets/Frame.js';
+import { formatHz, progressBar } from '../widgets/charts.js';
+import { keyingStrip, labelRow, timeRuler } from '../widgets/strip.js';
+import { FIELD_LABELS, fieldText, PLAN_FIELDS } from './plan-model.js';
+import type { PlanState, Prediction } from './plan-state.js';
+
+export interface StripLayout {
+  msPerColumn: number;
+  rows: number;
+  width: number;
+  /** Milliseconds one page of scrolling moves. */
+  pageMs: number;
+}
+
+/** How the timeline strip is laid out for a plan in a screen of the given size (pure). */
+export function stripLayout(plan: KeyingPlan | null, zoom: 'detail' | 'whole', width: number, height: number): StripLayout {
+  const w = Math.max(20, width - 2);
+  const rows = Math.max(1, Math.min(6, Math.floor((height - 19) / 3) + 1));
+  if (!plan) return { msPerColumn: 10, rows, width: w, pageMs: 10 * w };
+  const msPerColumn = zoom === 'detail' ? plan.unitMs / 2 : Math.max(plan.unitMs / 8, plan.totalMs / (w * rows));
+  return { msPerColumn, rows, width: w, pageMs: Math.max(msPerColumn, (msPerColumn * w * rows) / 2) };
+}
+
+const ms = (x: number): string => (x >= 100 ? x.toFixed(0) : x.toFixed(1));
+
+function predictionText(p: Prediction): { symbol: string; text: string; tone: 'good' | 'bad' | 'warn' | 'plain' } {
+  switch (p.state) {
+    case 'idle':
+    case 'busy':
+      return { symbol: SYMBOLS.busy, text: 'predicting the bandwidth…', tone: 'plain' };
+    case 'unavailable':
+      return { symbol: '', text: 'Predicted bandwidth: not available yet (shape analysis not in this build)', tone: 'plain' };
+    case 'error':
+      return { symbol: SYMBOLS.warn, text: `predicted bandwidth: ${p.message}`, tone: 'warn' };
+    case 'ready': {
+      const parts = [
+        p.occupiedHz !== null ? `occupied (99 %) ${formatHz(p.occupiedHz)}` : null,
+        p.at40DbcHz !== null ? `at −40 dBc ${formatHz(p.at40DbcHz)}` : null,
+        p.necessaryHz !== null ? `necessary ${formatHz(p.necessaryHz)}${p.designator ? ` (${p.designator})` : ''}` : null,
+      ].filter(Boolean);
+      const verdict = p.pass === null ? '' : p.pass ? ` · ${SYMBOLS.pass} within the mask` : ` · ${SYMBOLS.fail} over the mask`;
+      return { symbol: '', text: `Predicted: ${parts.join(' · ')}${verdict}`, tone: p.pass === false ? 'bad' : 'plain' };
+    }
+  }
+}
+
+export function PlanScreen(props: { state: PlanState; planned: { plan: KeyingPlan } | { error: string }; width: number; height: number; theme: Theme }) {
+  const { state, planned, width, height, theme } = props;
+  const plan = 'plan' in planned ? planned.plan : null;
+  const layout = stripLayout(plan, state.zoom, width, height);
+  const labelWidth = 12;
+  const valueWidth = Math.max(10, width - labelWidth - 4);
+  const pred = predictionText(state.prediction);
+  const strips: { ruler: string; strip: string; labels: string }[] = [];
+  if (plan) {
+    for (let r = 0; r < layout.rows; r++) {
+      const start = state.scrollMs + r * layout.msPerColumn * layout.width;
+      if (r > 0 && start > plan.totalMs) break;
+      strips.push({
+        ruler: timeRuler(start, layout.msPerColumn, layout.width),
+        strip: keyingStrip(plan.marks, start, layout.msPerColumn, layout.width),
+        labels: labelRow(plan.characters, start, layout.msPerColumn, layout.width),
+      });
+    }
+  }
+  const shownEnd = Math.min(plan?.totalMs ?? 0, state.scrollMs + layout.msPerColumn * layout.width * layout.rows);
+  return (
+    <Box flexDirection="column" width={width}>
+      <Text bold> Settings</Text>
+      {PLAN_FIELDS.map((f) => {
+        const selected = f === state.field;
+        const editing = selected && state.editing !== null;
+        const value = editing ? `${state.editing}▏` : fieldText(state.settings, f);
+        return (
+          <Box key={f}>
+            <Text color={selected ? colorFor(theme, 'accent') : undefined} bold={selected}>
+              {selected ? ` ${SYMBOLS.pointer} ` : '   '}
+              {FIELD_LABELS[f].padEnd(labelWidth)}
+            </Text>
+            <Text wrap="truncate-start" inverse={editing && theme.color} underline={editing && !theme.color}>
+              {Array.from(value).length > valueWidth ? Array.from(value).slice(-valueWidth).join('') : value}
+            </Text>
+            {selected && !editing ? <Text color={colorFor(theme, 'dim')}>{f === 'message' ? '  (Enter to type)' : '  ← →'}</Text> : null}
+          </Box>
+        );
+      })}
+      <Text> </Text>
+      {plan ? (
+        <Box flexDirection="column">
+          <Text wrap="truncate">
+            {` Duration ${(plan.totalMs / 1000).toFixed(2)} s · unit ${ms(plan.unitMs)} ms · ${plan.characterCount} characters · ${plan.marks.length} marks · dit ${ms(plan.ditMs)} ms · dah ${ms(plan.dahMs)} ms`}
+          </Text>
+          <Text wrap="truncate">
+            {` Gaps: element ${ms(plan.gapsMs.element)} ms · letter ${ms(plan.gapsMs.letter)} ms · word ${ms(plan.gapsMs.word)} ms${plan.farnsworthWpm ? ` (Farnsworth ${plan.farnsworthWpm} wpm overall)` : ''}`}
+          </Text>
+        </Box>
+      ) : (
+        <StatusLine tone="bad" symbol={SYMBOLS.fail} text={`cannot plan: ${'error' in planned ? planned.error : ''}`} theme={theme} />
+      )}
+      <Box paddingLeft={1}>
+        <StatusLine tone={pred.tone} symbol={pred.symbol} text={pred.text} theme={theme} />
+      </Box>
+      <Text> </Text>
+      <Text bold wrap="truncate">
+        {` Timeline ${(state.scrollMs / 1000).toFixed(1)}–${(shownEnd / 1000).toFixed(1)} s of ${((plan?.totalMs ?? 0) / 1000).toFixed(1)} s`}
+        <Text color={colorFor(theme, 'dim')}>{`  (${state.zoom === 'detail' ? '2 columns per unit' : 'whole message'}; █ key down, · key up)`}</Text>
+      </Text>
+      {strips.map((s, i) => (
+        <Box key={i} flexDirection="column">
+          <Text color={colorFor(theme, 'dim')}> {s.ruler}</Text>
+          <Text color={colorFor(theme, 'accent')}> {s.strip}</Text>
+          <Text> {s.labels}</Text>
+        </Box>
+      ))}
+      <ExportLine state={state} width={width} theme={theme} />
+    </Box>
+  );
+}
+
+function ExportLine({ state, theme }: { state: PlanState; width: number; theme: Theme }) {
+  const ex = state.exporter;
+  if (ex) {
+    const caution = ex.format === 'wav' || ex.format === 'c';
+    return (
+      <Box flexDirection="column">
+        <Text wrap="truncate">
+          {' Export as '}
+          <Text bold>{ex.format}</Text>
+          {' to '}
+          <Text inverse={theme.color} underline={!theme.color}>{`${ex.fileName}▏`}</Text>
+          {ex.stage === 'writing' ? ` ${progressBar(0.5, 12)}` : ''}
+        </Text>
+        {ex.stage === 'confirm' ? (
+          <StatusLine tone="warn" symbol={SYMBOLS.warn} text={`${ex.fileName} already exists: y replaces it, n keeps it`} theme={theme} />
+        ) : null}
+        {caution ? <Text color={colorFor(theme, 'dim')} wrap="wrap">{` ${SAFETY_NOTE}`}</Text> : null}
+      </Box>
+    );
+  }
+  if (state.status) {
+    const symbol = state.status.tone === 'good' ? SYMBOLS.pass : state.status.tone === 'bad' ? SYMBOLS.fail : '';
+    return <StatusLine tone={state.status.tone === 'accent' || state.status.tone === 'dim' ? 'plain' : state.status.tone} symbol={symbol} text={state.status.text} theme={theme} />;
+  }
+  return null;
+}

@@ -1,0 +1,95 @@
+/**
+ * The slow jobs of the app as plain data — decoding a recording, measuring or predicting the keying
+ * shape, sweeping the rise time — so they can run in a worker thread (worker.ts) or inline.
+ * Every figure comes from the core's functions.
+ */
+import { readWavFile } from '../io/wav-read.js';
+import { planKeying } from '../core/timing/plan.js';
+import type { EdgeKind } from '../core/signal/edges.js';
+import { loadReceive, loadShape, loadTiming, NotAvailableError, type DecodeResult } from './core-modules.js';
+
+export type ShapeTask =
+  | { kind: 'measure'; path: string }
+  | { kind: 'predict'; wpm: number; farnsworthWpm: number | null; riseMs: number; edge: EdgeKind; message: string; quick?: boolean }
+  | { kind: 'sweep'; wpm: number; farnsworthWpm: number | null; edge: EdgeKind; message: string };
+
+export type Task = ShapeTask | { kind: 'decode'; path: string };
+
+/** A decoded recording with the timing report of what was heard. */
+export interface DecodedRecording {
+  path: string;
+  channelNote: string | null;
+  decode: DecodeResult;
+  /** measureTiming's report of the observed timeline, or null when not available. */
+  timing: Record<string, unknown> | null;
+}
+
+const yieldToInput = (): Promise<void> => new Promise((r) => setImmediate(r));
+
+/** Reads and decodes a recording, then measures the timing of what was heard. */
+export async function decodeRecording(path: string, onProgress: (fraction: number) => void): Promise<DecodedRecording> {
+  const receive = await loadReceive();
+  if (!receive) throw new NotAvailableError('the receiver');
+  const audio = await readWavFile(path);
+  let index = 0;
+  let channelNote: string | null = null;
+  if (audio.channels.length > 1 && receive.pickChannel) {
+    const pick = receive.pickChannel(audio.channels, audio.sampleRate);
+    index = pick.index;
+    channelNote = `channel ${pick.index + 1} of ${audio.channels.length}: ${pick.reason}`;
+  }
+  const samples = audio.channels[index]!;
+  let decode: DecodeResult;
+  if (receive.StreamDecoder) {
+    // Half-second chunks through the streaming receiver, yielding between them.
+    const decoder = new receive.StreamDecoder(audio.sampleRate, { keepEnvelope: true });
+    const chunk = Math.max(1024, Math.round(audio.sampleRate / 2));
+    for (let i = 0; i < samples.length; i += chunk) {
+      decoder.push(samples.subarray(i, Math.min(samples.length, i + chunk)));
+      onProgress(Math.min(1, (i + chunk) / samples.length) * 0.9);
+      await yieldToInput();
+    }
+    decode = decoder.finish();
+  } else {
+    decode = receive.decodeSamples(samples, audio.sampleRate, { keepEnvelope: true, onProgress: (f) => onProgress(f * 0.9) });
+  }
+  const timingModule = await loadTiming();
+  let timing: Record<string, unknown> | null = null;
+  if (timingModule && decode.marks.length > 0) {
+    try {
+      timing = timingModule.measureTiming(decode, decode.unitMs > 0 ? { unitMsHint: decode.unitMs } : {});
+    } catch {
+      timing = null; // too few marks to measure: the pane says so
+    }
+  }
+  onProgress(1);
+  return { path, channelNote, decode, timing };
+}
+
+/** Runs one shape job with the core's shape functions. */
+export async function runShapeTask(task: ShapeTask, onProgress: (fraction: number) => void): Promise<unknown> {
+  const shape = await loadShape();
+  if (!shape) throw new NotAvailableError('the keying-shape analysis');
+  switch (task.kind) {
+    case 'measure': {
+      const audio = await readWavFile(task.path);
+      return shape.measureShape(audio.channels[0]!, audio.sampleRate, { onProgress });
+    }
+    case 'predict': {
+      // The planned message's own marks, so the figures describe what this plan would send.
+      const marks = planKeying(task.message, { wpm: task.wpm, farnsworthWpm: task.farnsworthWpm }).marks;
+      return shape.predictShape({
+        wpm: task.wpm, farnsworthWpm: task.farnsworthWpm, riseMs: task.riseMs, edge: task.edge, text: task.message, marks,
+        findShortestRise: !task.quick, onProgress,
+      });
+    }
+    case 'sweep': {
+      if (!shape.sweepRise) throw new NotAvailableError('the rise-time sweep');
+      return shape.sweepRise({ wpm: task.wpm, farnsworthWpm: task.farnsworthWpm, edge: task.edge, text: task.message, onProgress });
+    }
+  }
+}
+
+export function runTask(task: Task, onProgress: (fraction: number) => void): Promise<unknown> {
+  return task.kind === 'decode' ? decodeRecording(task.path, onProgress) : runShapeTask(task, onProgress);
+}
