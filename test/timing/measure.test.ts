@@ -118,6 +118,7 @@ describe('measureTiming jitter and drift', () => {
     const r = measureTiming({ marks });
     expect(r.wordWpm.length).toBe(words.length);
     expect(r.driftWpm).toBeCloseTo(words.length - 1, 1);
+    expect(r.jitterPct).toBeCloseTo(0, 6); // each word is exact at its own speed: drift is not jitter
     expect(r.wordWpm[0]).toBeCloseTo(18, 0);
     expect(r.wordWpm[words.length - 1]).toBeCloseTo(18 + words.length - 1, 0);
   });

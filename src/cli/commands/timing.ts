@@ -180,7 +180,7 @@ export function formatTimingReport(
   lines.push(`Weighting:      ${r.weightPct === null ? 'not measurable' : `${r.weightPct.toFixed(1)} %`}   dash/dot ratio ${fx(r.dahDitRatio, 2)}`);
   lines.push(`Marks (units):  dit ${cls(r.markUnits.dit)}   dah ${cls(r.markUnits.dah)}`);
   lines.push(`Gaps (units):   element ${cls(r.gapUnits.element)}   letter ${cls(r.gapUnits.letter)}   word ${cls(r.gapUnits.word)}`);
-  lines.push(`Jitter:         ${r.jitterPct === null ? 'not measurable' : `${r.jitterPct.toFixed(1)} % of a unit`} (RMS edge deviation from a grid fitted to each character)`);
+  lines.push(`Jitter:         ${r.jitterPct === null ? 'not measurable' : `${r.jitterPct.toFixed(1)} % of a unit`} (RMS edge deviation from a grid fitted to each character at its word's speed)`);
   if (r.driftWpm !== null) {
     lines.push(`Drift:          ${signed(r.driftWpm)} wpm from first to last word (${r.wordWpm[0]!.toFixed(1)} → ${r.wordWpm[r.wordWpm.length - 1]!.toFixed(1)} wpm over ${r.wordWpm.length} words)`);
   } else lines.push('Drift:          not measurable (one word)');

@@ -81,7 +81,10 @@ export interface TimingReport {
   dahMs: number | null;
   markUnits: { dit: ClassStats | null; dah: ClassStats | null };
   gapUnits: { element: ClassStats | null; letter: ClassStats | null; word: ClassStats | null };
-  /** RMS deviation of the edges from a grid fitted to each character, in % of a unit (edge jitter); null without edges to compare. */
+  /**
+   * Edge jitter: RMS deviation of the edges from a grid fitted to each character (class lengths at
+   * the word's own speed, the character's offset removed), in % of a unit; null without edges to compare.
+   */
   jitterPct: number | null;
   /** Speed change from the first to the last word along a straight line fitted to the word speeds [wpm]; null with fewer than two words. */
   driftWpm: number | null;
@@ -235,10 +238,33 @@ export function measureTiming(timeline: { marks: readonly Interval[] }, options:
     element: el.length > 0 ? median(el) : 2 * unit - (ditMs ?? unit),
   };
 
-  // Edge jitter: within each character, the edges against the class lengths laid end to end,
-  // with the character's own offset removed (one degree of freedom per character).
+  // Word speeds: observed element-level time of each word over its typical length.
+  const wordWpm: number[] = [];
+  const scale = new Float64Array(marks.length); // each mark's word speed relative to the whole
+  let obs = 0;
+  let exp = 0;
+  let wordStart = 0;
+  marks.forEach((_, i) => {
+    obs += lens[i]!;
+    exp += isDah[i] ? typical.dah : typical.dit;
+    if (i < gaps.length && gapClass[i] === 'element') {
+      obs += gaps[i]!;
+      exp += typical.element;
+    }
+    if (i === marks.length - 1 || gapClass[i] === 'word') {
+      wordWpm.push(1200 / ((unit * obs) / exp));
+      scale.fill(obs / exp, wordStart, i + 1);
+      wordStart = i + 1;
+      obs = 0;
+      exp = 0;
+    }
+  });
+
+  // Edge jitter: within each character, the edges against the class lengths laid end to end (at
+  // the word's own speed, so drift is not counted as jitter), with the character's own offset
+  // removed. Degrees of freedom: edges − 1 per character − 1 per word (its fitted speed).
   let ssr = 0;
-  let dof = 0;
+  let dof = -wordWpm.length;
   const chars: number[][] = [];
   let current: number[] = [];
   marks.forEach((_, i) => {
@@ -252,9 +278,9 @@ export function measureTiming(timeline: { marks: readonly Interval[] }, options:
     const resid: number[] = [];
     let t = 0;
     ch.forEach((i, k) => {
-      if (k > 0) t += typical.element;
+      if (k > 0) t += typical.element * scale[i]!;
       resid.push(marks[i]![0] - t);
-      t += isDah[i] ? typical.dah : typical.dit;
+      t += (isDah[i] ? typical.dah : typical.dit) * scale[i]!;
       resid.push(marks[i]![1] - t);
     });
     const m = resid.reduce((a, b) => a + b, 0) / resid.length;
@@ -263,23 +289,6 @@ export function measureTiming(timeline: { marks: readonly Interval[] }, options:
   }
   const jitterPct = dof > 0 ? (100 * Math.sqrt(ssr / dof)) / unit : null;
 
-  // Word speeds: observed element-level time of each word over its typical length.
-  const wordWpm: number[] = [];
-  let obs = 0;
-  let exp = 0;
-  marks.forEach((_, i) => {
-    obs += lens[i]!;
-    exp += isDah[i] ? typical.dah : typical.dit;
-    if (i < gaps.length && gapClass[i] === 'element') {
-      obs += gaps[i]!;
-      exp += typical.element;
-    }
-    if (i === marks.length - 1 || gapClass[i] === 'word') {
-      wordWpm.push(1200 / ((unit * obs) / exp));
-      obs = 0;
-      exp = 0;
-    }
-  });
   let driftWpm: number | null = null;
   if (wordWpm.length >= 2) {
     const { slope } = fitLine(wordWpm.map((_, k) => k), wordWpm);
