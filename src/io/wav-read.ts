@@ -16,6 +16,8 @@ const FORMAT_NAMES: Record<number, string> = {
 
 interface FmtInfo {
   formatTag: number;
+  /** Byte offset of the format tag field when the file uses WAVE_FORMAT_EXTENSIBLE (0xFFFE), else −1. */
+  extensibleTagOffset?: number;
   channels: number;
   sampleRate: number;
   bitsPerSample: number;
@@ -36,6 +38,7 @@ export function inspectWavHeader(name: string, bytes: Uint8Array): FmtInfo {
     if (id === 'fmt ') {
       if (size < 16 || off + 8 + 16 > bytes.length) throw new InputError(`${name}: truncated fmt chunk`);
       let formatTag = view.getUint16(off + 8, true);
+      const extensibleTagOffset = formatTag === 0xfffe ? off + 8 : -1;
       const channels = view.getUint16(off + 10, true);
       const sampleRate = view.getUint32(off + 12, true);
       const bitsPerSample = view.getUint16(off + 22, true);
@@ -52,7 +55,7 @@ export function inspectWavHeader(name: string, bytes: Uint8Array): FmtInfo {
       if (!okBits.includes(bitsPerSample)) {
         throw new InputError(`${name}: unsupported ${bitsPerSample}-bit ${formatTag === 3 ? 'float' : 'PCM'} samples`);
       }
-      return { formatTag, channels, sampleRate, bitsPerSample };
+      return { formatTag, channels, sampleRate, bitsPerSample, extensibleTagOffset };
     }
     off += 8 + size + (size & 1);
   }
@@ -64,7 +67,15 @@ export function decodeWavBytes(name: string, bytes: Uint8Array): DecodedAudio {
   const fmt = inspectWavHeader(name, bytes);
   let data;
   try {
-    data = WavDecoder.decode.sync(bytes);
+    // wav-decoder reads only the plain format tags: give it a copy that names the sub-format of a
+    // WAVE_FORMAT_EXTENSIBLE file (what sox and many recorders write for 24-bit and multichannel).
+    let input: Uint8Array | ArrayBuffer = bytes;
+    if (fmt.extensibleTagOffset !== undefined && fmt.extensibleTagOffset >= 0) {
+      const copy = new Uint8Array(bytes); // a fresh ArrayBuffer of exactly the file's length
+      new DataView(copy.buffer).setUint16(fmt.extensibleTagOffset, fmt.formatTag, true);
+      input = copy.buffer;
+    }
+    data = WavDecoder.decode.sync(input);
   } catch (err) {
     throw new InputError(`${name}: unreadable WAV data (${(err as Error).message})`);
   }

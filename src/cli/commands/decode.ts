@@ -1,13 +1,127 @@
 import type { Command } from 'commander';
+import { InputError } from '../../core/errors.js';
+import { decodeSamples, pickChannel, type DecodeResult } from '../../core/receive/index.js';
+import { formatJson } from '../../io/json.js';
+import { readWavFile } from '../../io/wav-read.js';
 import type { CommandContext } from '../io.js';
+import { numberIn } from '../options.js';
 
-/** Placeholder: the 'decode' command is being built. */
+export interface DecodeCliOptions {
+  tone?: number;
+  channel?: number;
+  json?: boolean;
+}
+
+const r1 = (x: number): number => Math.round(x * 10) / 10;
+
+/** The JSON form of a decode (field names are a stable interface, shared with the encoder's timeline). */
+export function decodeToJson(result: DecodeResult, extra: Record<string, unknown>): Record<string, unknown> {
+  return {
+    text: result.text,
+    wpm: result.wpm,
+    farnsworthWpm: result.farnsworthWpm,
+    unitMs: result.unitMs,
+    toneHz: result.toneHz,
+    snrDb: result.snrDb,
+    totalMs: result.totalMs,
+    durationMs: result.durationMs,
+    ...extra,
+    marks: result.marks.map(([a, b]) => [r1(a), r1(b)]),
+    characters: result.characters.map((c) => ({
+      text: c.text,
+      startMs: r1(c.startMs),
+      endMs: r1(c.endMs),
+      pattern: c.pattern,
+      confidence: Math.round(c.confidence * 1000) / 1000,
+    })),
+    warnings: result.warnings,
+  };
+}
+
+/** One-line summary for stderr. */
+export function decodeSummary(result: DecodeResult): string {
+  if (result.toneHz === null) return 'no keyed signal found';
+  const parts = [`${result.wpm} wpm`];
+  if (result.farnsworthWpm !== null) parts.push(`Farnsworth ${result.farnsworthWpm} wpm`);
+  parts.push(`tone ${result.toneHz.toFixed(1)} Hz`);
+  parts.push(result.snrDb === null ? 'SNR not measurable (no noise)' : `SNR ${result.snrDb.toFixed(1)} dB in 2500 Hz`);
+  parts.push(`${result.characters.length} characters`);
+  return parts.join(', ');
+}
+
 export function registerDecode(program: Command, ctx: CommandContext): void {
   program
     .command('decode')
-    .description('(decode: not built yet)')
-    .action(() => {
-      ctx.warn('decode is not built yet');
-      ctx.setExitCode(1);
+    .argument('<file>', 'WAV recording (PCM 8/16/24/32-bit or 32-bit float, any channels, 8000–192000 Hz)')
+    .summary('read a recording of a keyed tone back to text, speed and timeline')
+    .description(
+      'Decode the keyed tone in a WAV recording: text on stdout, a one-line summary (speed, tone, SNR) on stderr.\n' +
+        'The tone is found automatically (strongest spectral peak) and followed if it drifts; the speed is\n' +
+        'estimated and tracked. SNR is key-down carrier power over noise power in a 2500 Hz bandwidth.',
+    )
+    .option('--tone <hz>', 'carrier tone in the recording (Hz, 50–20000; default: found automatically)', numberIn('--tone', 50, 20_000))
+    .option('--channel <n>', 'channel to decode, 1 = first (default: the one with the strongest keyed tone)', numberIn('--channel', 1, 64, { integer: true }))
+    .option('--json', 'print { text, wpm, toneHz, snrDb, marks, characters, warnings, … } as JSON on stdout')
+    .addHelpText(
+      'after',
+      `
+Examples:
+  keyform decode q7zkt-beacon.wav
+  keyform decode shack-recording.wav --tone 650 --channel 2
+  keyform decode q7zkt-beacon.wav --json > observed.json
+
+Marks are [startMs, endMs] from the start of the audio; characters carry their dots and dashes
+and a confidence 0…1. Unknown patterns print as *. Silence or noise is not an error: the text is
+empty and a warning says no keyed signal was found.`,
+    )
+    .action(async (file: string, o: DecodeCliOptions) => {
+      const audio = await readWavFile(file);
+      let index = 0;
+      let channelNote: string | null = null;
+      if (o.channel !== undefined) {
+        if (o.channel > audio.channels.length) {
+          throw new InputError(`${file}: --channel ${o.channel} does not exist (the file has ${audio.channels.length} channel${audio.channels.length === 1 ? '' : 's'})`);
+        }
+        index = o.channel - 1;
+      } else if (audio.channels.length > 1) {
+        const pick = pickChannel(audio.channels, audio.sampleRate);
+        index = pick.index;
+        channelNote = `using ${pick.reason}`;
+      }
+      if (o.tone !== undefined && o.tone >= audio.sampleRate / 2) {
+        throw new InputError(`--tone must be below half the sample rate, ${audio.sampleRate / 2} Hz (got ${o.tone})`);
+      }
+      const showProgress = Boolean(ctx.io.stderr.isTTY) && !o.json;
+      let shown = -1;
+      const result = decodeSamples(audio.channels[index]!, audio.sampleRate, {
+        toneHz: o.tone,
+        onProgress: showProgress
+          ? (f) => {
+              const pct = Math.floor(f * 100);
+              if (pct !== shown && pct % 5 === 0) {
+                shown = pct;
+                ctx.io.stderr.write(`\rkeyform: decoding ${String(pct).padStart(3)} %`);
+              }
+            }
+          : undefined,
+      });
+      if (showProgress) ctx.io.stderr.write('\r\x1b[K');
+      if (channelNote) ctx.warn(channelNote);
+      for (const w of result.warnings) ctx.warn(w);
+      if (o.json) {
+        ctx.io.stdout.write(
+          formatJson(
+            decodeToJson(result, {
+              sampleRate: audio.sampleRate,
+              encoding: audio.encoding,
+              channel: index + 1,
+              channels: audio.channels.length,
+            }),
+          ),
+        );
+      } else {
+        ctx.io.stdout.write(result.text + '\n');
+      }
+      ctx.warn(decodeSummary(result));
     });
 }
