@@ -28,7 +28,7 @@ export function meanFrequencyHz(bb: Baseband, sampleRate: number, i0: number, i1
 export interface ChirpOptions {
   /** How long after the 50 % key-down point to look [ms], 0.5…200; default 10. */
   windowMs?: number;
-  /** Length of each frequency average [ms], 0.1…10; default 0.5. */
+  /** Length of each frequency average [ms], 0.1…10; default 1. */
   averageMs?: number;
   /**
    * The envelope's own 10–90 % response to a hard step [ms]. An edge not much slower than that has
@@ -43,28 +43,31 @@ export interface MarkChirp {
   startMs: number;
   /** Settled tone of this mark, relative to the analysis tone [Hz]. */
   settledOffsetHz: number;
-  /** Largest deviation from the settled tone within the window, with its sign [Hz]. */
+  /** Deviation from the settled tone at `atMs` [Hz], with its sign. */
   chirpHz: number;
-  /** When that largest deviation happened, after the 50 % key-down point [ms]. */
+  /** When, after the 50 % key-down point [ms]: where the average over all marks deviates most. */
   atMs: number;
 }
 
 /**
- * Measures each mark's chirp: the settled tone is the power-weighted mean frequency over the
- * mark's later part; the chirp is the largest deviation from it among `averageMs` averages centred
- * every averageMs/2 from the 50 % key-down point (later for near-hard edges, see `resolutionMs`) to
- * `windowMs` after it.
+ * Measures each mark's chirp. The settled tone is the power-weighted mean frequency over the mark's
+ * later part; the deviation from it is tracked in `averageMs` averages every averageMs/2 from the 50 %
+ * key-down point (later for near-hard edges, see `resolutionMs`) to `windowMs` after it. The instant
+ * is chosen where the track averaged over all marks deviates most, and each mark reports its own
+ * deviation there — so noise does not inflate the figure the way a per-mark maximum would.
  * @param bb - Complex baseband of the recording (see complexBaseband).
  * @param sampleRate - Sample rate [Hz].
- * @param marks - Marks from measureEdges; only marks with a measured rise are used.
+ * @param marks - Marks from measureEdges; only marks with a measured rise and fall are used.
  * @returns One entry per usable mark.
  * @example measureChirp(bb, 48000, edges.marks)[0].chirpHz //=> ≈ 30 for a 30 Hz pull at key-down
  */
 export function measureChirp(bb: Baseband, sampleRate: number, marks: readonly MarkShape[], options: ChirpOptions = {}): MarkChirp[] {
   const windowMs = checkRange('chirp window', options.windowMs ?? 10, 0.5, 200, 'ms');
-  const averageMs = checkRange('chirp average', options.averageMs ?? 0.5, 0.1, 10, 'ms');
+  const averageMs = checkRange('chirp average', options.averageMs ?? 1, 0.1, 10, 'ms');
   const perMs = sampleRate / 1000;
-  const out: MarkChirp[] = [];
+  const stepMs = averageMs / 2;
+  const steps = Math.floor(windowMs / stepMs) + 1;
+  const tracks: Array<{ startMs: number; settled: number; d: Array<number | null> }> = [];
   for (const m of marks) {
     if (!m.rise || !m.fall) continue;
     const a = m.rise.at50Ms;
@@ -72,23 +75,47 @@ export function measureChirp(bb: Baseband, sampleRate: number, marks: readonly M
     const D = b - a;
     const settled = meanFrequencyHz(bb, sampleRate, (a + 0.5 * D) * perMs, (b - 0.2 * D) * perMs);
     if (settled === null) continue;
-    let best = 0;
-    let atMs = 0;
-    const end = Math.min(windowMs, 0.5 * D);
     const res = options.resolutionMs ?? 0;
     const hardish = res > 0 && m.rise.rise10to90Ms < 3 * res;
-    const startMs = hardish ? m.rise.levelTimesMs.p90 - m.rise.levelTimesMs.p50 + 2 * res : 0;
-    for (let t = startMs; t <= end + 1e-9; t += averageMs / 2) {
+    const fromMs = hardish ? m.rise.levelTimesMs.p90 - m.rise.levelTimesMs.p50 + 2 * res : 0;
+    const toMs = Math.min(windowMs, 0.5 * D);
+    const d: Array<number | null> = [];
+    for (let j = 0; j < steps; j++) {
+      const t = j * stepMs;
+      if (t < fromMs - 1e-9 || t > toMs + 1e-9) {
+        d.push(null);
+        continue;
+      }
       const c = (a + t) * perMs;
       const f = meanFrequencyHz(bb, sampleRate, c - (averageMs / 2) * perMs, c + (averageMs / 2) * perMs);
-      if (f === null) continue;
-      const d = f - settled;
-      if (Math.abs(d) > Math.abs(best)) {
-        best = d;
-        atMs = t;
+      d.push(f === null ? null : f - settled);
+    }
+    tracks.push({ startMs: a, settled, d });
+  }
+  let bestJ = -1;
+  let bestAbs = -1;
+  for (let j = 0; j < steps; j++) {
+    let sum = 0;
+    let n = 0;
+    for (const t of tracks) {
+      const v = t.d[j];
+      if (v !== null && v !== undefined) {
+        sum += v;
+        n++;
       }
     }
-    out.push({ startMs: a, settledOffsetHz: settled, chirpHz: best, atMs });
+    if (n > 0 && Math.abs(sum / n) > bestAbs) {
+      bestAbs = Math.abs(sum / n);
+      bestJ = j;
+    }
+  }
+  if (bestJ < 0) return [];
+  const out: MarkChirp[] = [];
+  for (const t of tracks) {
+    // A mark without a value at the chosen instant uses its nearest one.
+    let v: number | null = null;
+    for (let r = 0; r < steps && v === null; r++) v = t.d[bestJ + r] ?? t.d[bestJ - r] ?? null;
+    if (v !== null) out.push({ startMs: t.startMs, settledOffsetHz: t.settled, chirpHz: v, atMs: bestJ * stepMs });
   }
   return out;
 }

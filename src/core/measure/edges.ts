@@ -23,7 +23,7 @@ export interface MarkShape {
   settledLevel: number;
   /** Level before the mark (noise or carrier leak), in envelope units. */
   baseLevel: number;
-  /** Plateau noise: standard deviation over the settled part / (settled − base). */
+  /** Plateau noise: standard deviation over the settled part (less its 1 ms moving average) / (settled − base). */
   plateauNoise: number;
   /** Peak above the settled level during the first half of the mark [%]. */
   overshootPct: number;
@@ -59,18 +59,26 @@ function medianOf(env: Float32Array, i0: number, i1: number): number {
   return percentile(a, 0.5);
 }
 
-function stdOf(env: Float32Array, i0: number, i1: number): number {
-  let s = 0;
+/**
+ * Noise of env[i0, i1): standard deviation of the envelope minus its moving average over `win`
+ * samples, so a slow trend (an edge that has not settled) does not count as noise.
+ */
+function residualStdOf(env: Float32Array, i0: number, i1: number, win: number): number {
+  const a = Math.max(0, i0);
+  const b = Math.min(env.length, i1);
+  const h = Math.max(1, Math.floor(win / 2));
+  if (b - a < 2 * h + 2) return 0;
+  let run = 0;
+  for (let i = a; i < a + 2 * h + 1; i++) run += env[i]!;
   let s2 = 0;
   let n = 0;
-  for (let i = Math.max(0, i0); i < Math.min(env.length, i1); i++) {
-    s += env[i]!;
-    s2 += env[i]! * env[i]!;
+  for (let c = a + h; c + h < b; c++) {
+    const d = env[c]! - run / (2 * h + 1);
+    s2 += d * d;
     n++;
+    if (c + h + 1 < b) run += env[c + h + 1]! - env[c - h]!;
   }
-  if (n < 2) return 0;
-  const m = s / n;
-  return Math.sqrt(Math.max(0, s2 / n - m * m));
+  return n > 0 ? Math.sqrt(s2 / n) : 0;
 }
 
 /** Sorted copy of a numeric list. */
@@ -227,7 +235,7 @@ export function measureEdges(env: Float32Array, sampleRate: number, options: Edg
     const baseBefore = m === 0 && gapBefore < 4 ? offLevel : medianOf(env, prevEnd + Math.floor(0.25 * gapBefore), a - Math.floor(0.25 * gapBefore));
     const baseAfter = gapAfter < 4 ? offLevel : medianOf(env, b + Math.floor(0.25 * gapAfter), nextStart - Math.floor(0.25 * gapAfter));
     const span = settled - baseBefore;
-    const plateauNoise = span > 0 ? stdOf(env, a + Math.floor(0.25 * D), b - Math.floor(0.25 * D)) / span : Infinity;
+    const plateauNoise = span > 0 ? residualStdOf(env, a + Math.floor(0.25 * D), b - Math.floor(0.25 * D), Math.round(sampleRate / 1000)) / span : Infinity;
     let peak = 0;
     for (let i = a; i < a + D / 2; i++) peak = Math.max(peak, env[i]!);
     const mark: MarkShape = {

@@ -35,7 +35,8 @@ export const CAUTION =
   'keying-line voltage and current. Defer to local rules and licensed practice.';
 
 export const FILTER_NOTE =
-  "A receiver's own filter lengthens the rise and fall it passes (a 500 Hz CW filter alone adds about a millisecond): " +
+  "A receiver's own filter lengthens the rise and fall it passes (a 500 Hz CW filter alone has a step response of roughly 1.4 ms, " +
+  "from the rule of thumb rise ≈ 0.35 / (half its bandwidth)): " +
   'record through a wide filter, 2.4 kHz or more, or take the sidetone (common practice).';
 
 export interface Spread {
