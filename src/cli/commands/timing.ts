@@ -200,12 +200,18 @@ export function registerTiming(program: Command, ctx: CommandContext): void {
     .argument('<input>', 'WAV recording, logic capture CSV (time,state), or a JSON timeline with "marks"')
     .summary('measure how a message was keyed, and how far it is from the intended one')
     .description(
-      'Measure speed, weighting, dash/dot ratio, gap lengths, jitter and drift of a recording or of a\n' +
-        'logic capture of the keying line, and with an intended message align element by element.\n' +
-        'A capture CSV has a header naming the time unit (time_s, time_ms, "Time [s]"; a bare "time"\n' +
-        'means seconds) and a state column (1/0, high/low, on/off, down/up), one row per edge.\n' +
-        'The planning options (--wpm, --weight …) describe the intended message given with --expect.\n' +
-        'Exit code 1 when the alignment is outside the tolerance.',
+      [
+        'Measure speed, weighting, dash/dot ratio, gap lengths, jitter and drift',
+        'of a recording or of a logic capture of the keying line; with an intended',
+        'message, align it element by element and report start and length errors.',
+        '',
+        'A capture CSV has a header naming the time unit (time_s, time_ms,',
+        '"Time [s]"; a bare "time" means seconds) and a state column (1/0,',
+        'high/low, on/off, down/up), one row per edge.',
+        'The planning options (--wpm, --weight …) describe the message given with',
+        '--expect or --expect-file. Exit code 1 when the alignment is outside the',
+        'tolerance.',
+      ].join('\n'),
     )
     .option('--expect <text>', 'the intended message (planned with the options below)')
     .option('--expect-file <file>', 'read the intended message from a text file')
