@@ -95,3 +95,54 @@ export function mutatedWav(): fc.Arbitrary<Uint8Array> {
       return new Uint8Array(bytes);
     });
 }
+
+type BodyDamage =
+  | { kind: 'zero' | 'full' | 'noise'; at: number; length: number; seed: number }
+  | { kind: 'nonfinite'; at: number; length: number; value: number }
+  | { kind: 'truncate'; keep: number };
+
+const bodyDamage: fc.Arbitrary<BodyDamage> = fc.oneof(
+  fc.record({ kind: fc.constantFrom('zero' as const, 'full' as const, 'noise' as const), at: fc.double({ min: 0, max: 1, noNaN: true }), length: fc.nat({ max: 8000 }), seed: fc.nat() }),
+  fc.record({ kind: fc.constant('nonfinite' as const), at: fc.double({ min: 0, max: 1, noNaN: true }), length: fc.nat({ max: 2000 }), value: fc.constantFrom(NaN, Infinity, -Infinity) }),
+  fc.record({ kind: fc.constant('truncate' as const), keep: fc.double({ min: 0, max: 1, noNaN: true }) }),
+);
+
+/**
+ * A keyed recording of 0.5–3 s (keyform's synthesizer, 8 kHz, 16-bit or float) whose *body* is
+ * damaged: dropouts, full-scale bursts, random bytes, NaN/Inf runs, cut short. For the receiver.
+ */
+export function damagedRecording(keyed: (seconds: number) => Float32Array): fc.Arbitrary<Uint8Array> {
+  return fc
+    .record({
+      seconds: fc.double({ min: 0.5, max: 3, noNaN: true }),
+      encoding: fc.constantFrom<WavEncoding>('s16', 'f32'),
+      damage: fc.array(bodyDamage, { maxLength: 4 }),
+    })
+    .map(({ seconds, encoding, damage }) => {
+      let bytes = Buffer.from(encodeWav({ sampleRate: 8000, channels: [keyed(seconds)], encoding }));
+      const bps = encoding === 'f32' ? 4 : 2;
+      const frames = (bytes.length - 44) / bps;
+      for (const d of damage) {
+        if (d.kind === 'truncate') {
+          bytes = bytes.subarray(0, 44 + Math.floor(d.keep * (bytes.length - 44)));
+          continue;
+        }
+        const start = Math.floor(d.at * frames);
+        const end = Math.min(frames, start + d.length);
+        let x = (d.kind === 'noise' ? d.seed : 0) >>> 0;
+        for (let i = start; i < end; i++) {
+          const o = 44 + i * bps;
+          if (o + bps > bytes.length) break;
+          if (d.kind === 'zero') bytes.fill(0, o, o + bps);
+          else if (d.kind === 'full') {
+            if (bps === 2) bytes.writeInt16LE(i % 2 ? 32767 : -32768, o);
+            else bytes.writeFloatLE(i % 2 ? 1 : -1, o);
+          } else if (d.kind === 'noise') {
+            x = (Math.imul(x, 1664525) + 1013904223) >>> 0;
+            bytes.writeUInt16LE(x >>> 16, o);
+          } else if (bps === 4) bytes.writeFloatLE(d.value, o);
+        }
+      }
+      return new Uint8Array(bytes);
+    });
+}

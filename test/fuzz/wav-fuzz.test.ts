@@ -14,9 +14,15 @@ import { openWavBytes, readAllAudio } from '../../src/io/audio-source.js';
 import { decodeWavBytes } from '../../src/io/wav-read.js';
 import { RawPcmParser, WavStreamParser } from '../../src/io/wav-stream.js';
 import { encodeWav, type WavEncoding } from '../../src/io/wav-write.js';
-import { mutatedWav } from './mutate.js';
+import { synthesizeTone } from '../../src/core/signal/synth.js';
+import { planKeying } from '../../src/core/timing/plan.js';
+import { damagedRecording, mutatedWav } from './mutate.js';
 
 const RUNS = Number(process.env.FUZZ_RUNS ?? 3000);
+/** Per-test time limit, scaled for long runs (npm run fuzz) [ms]. */
+const TIMEOUT_MS = Math.max(60_000, RUNS * 5);
+/** Longer recordings for the receiver: a twentieth as many cases. */
+const LONG_RUNS = Math.max(50, Math.round(RUNS / 20));
 const SEED = Number(process.env.FUZZ_SEED ?? 20261201);
 const NAME = 'fuzz.wav';
 
@@ -64,7 +70,7 @@ describe('fuzzing the WAV readers', () => {
       }),
       { numRuns: RUNS, seed: SEED },
     );
-  });
+  }, TIMEOUT_MS);
 
   it(`whole-file path of openAudio: result or one-line InputError, same samples as the streaming parser (${RUNS} cases)`, async () => {
     await fc.assert(
@@ -85,7 +91,7 @@ describe('fuzzing the WAV readers', () => {
       }),
       { numRuns: RUNS, seed: SEED + 1 },
     );
-  });
+  }, TIMEOUT_MS);
 
   it(`whole-file reader (decodeWavBytes): result or one-line InputError once the header passes the streaming check (${RUNS} cases)`, () => {
     fc.assert(
@@ -108,7 +114,7 @@ describe('fuzzing the WAV readers', () => {
       }),
       { numRuns: RUNS, seed: SEED + 2 },
     );
-  });
+  }, TIMEOUT_MS);
 
   it(`raw PCM parser: any bytes in any pieces give whole frames or nothing (${RUNS} cases)`, () => {
     fc.assert(
@@ -138,7 +144,7 @@ describe('fuzzing the WAV readers', () => {
       ),
       { numRuns: RUNS, seed: SEED + 3 },
     );
-  });
+  }, TIMEOUT_MS);
 
   it(`receiver behind the readers: every mutated file ends in a decode result or a one-line InputError (${RUNS} cases)`, async () => {
     await fc.assert(
@@ -156,7 +162,25 @@ describe('fuzzing the WAV readers', () => {
       }),
       { numRuns: RUNS, seed: SEED + 4 },
     );
-  });
+  }, TIMEOUT_MS);
+
+  it(`receiver on damaged keyed recordings (dropouts, bursts, random bytes, NaN runs, cut short): result or one-line InputError (${LONG_RUNS} cases)`, async () => {
+    const plan = planKeying('Q7ZKT TEST Q7ZKT', { wpm: 25 });
+    const full = synthesizeTone({ marks: plan.marks, sampleRate: 8000, toneHz: 700, levelDb: -6, edge: 'raised-cosine', riseMs: 5, padMs: 200 }).samples;
+    const keyed = (seconds: number): Float32Array => full.subarray(0, Math.min(full.length, Math.round(seconds * 8000)));
+    await fc.assert(
+      fc.asyncProperty(damagedRecording(keyed), async (bytes) => {
+        try {
+          const { result } = await decodeAudioSource(openWavBytes(NAME, bytes));
+          expect(typeof result.text).toBe('string');
+          for (const [a, b] of result.marks) expect(a <= b && Number.isFinite(a) && Number.isFinite(b)).toBe(true);
+        } catch (err) {
+          expectOneLineInputError(err);
+        }
+      }),
+      { numRuns: LONG_RUNS, seed: SEED + 5 },
+    );
+  }, TIMEOUT_MS);
 
   it('the unmutated inputs of the fuzzer are read correctly (the fuzz starts from valid files)', () => {
     for (const encoding of ['u8', 's16', 's24', 's32', 'f32'] as WavEncoding[]) {

@@ -263,15 +263,21 @@ async function runBatch(inputs: string[], o: BatchCliOptions, ctx: CommandContex
   if (lines) io.stdout.write(`${headerLine(nameWidth)}\n`);
   const options: BatchTask['options'] = { toneHz: o.tone, channel: o.channel, shapeSeconds: o.shapeSeconds, skipShape: !o.shape };
 
+  const redraw = (): void => {
+    const audioS = rows.reduce((s, r) => s + (r.durationS ?? 0), 0);
+    const errors = rows.filter((r) => r.verdict === 'error').length;
+    progress.update(rows.length / files.length, `${rows.length}/${files.length} files${errors ? `, ${errors} errors` : ''}, ${Math.round(audioS)} s of audio`);
+  };
   const record = (row: BatchRow): void => {
     rows.push(row);
     writer?.append(row);
     progress.done();
     if (lines) io.stdout.write(`${formatRowLine(row, nameWidth)}\n`);
-    const audioS = rows.reduce((s, r) => s + (r.durationS ?? 0), 0);
-    const errors = rows.filter((r) => r.verdict === 'error').length;
-    progress.update(rows.length / files.length, `${rows.length}/${files.length} files${errors ? `, ${errors} errors` : ''}, ${Math.round(audioS)} s of audio`);
+    redraw();
   };
+  // Keep the elapsed time moving while long files are analysed (TTY only; the timer does not hold the process).
+  const ticker = io.stderr.isTTY ? setInterval(redraw, 1000) : null;
+  ticker?.unref();
 
   try {
     await Promise.all(
@@ -286,6 +292,7 @@ async function runBatch(inputs: string[], o: BatchCliOptions, ctx: CommandContex
       ),
     );
   } finally {
+    if (ticker) clearInterval(ticker);
     process.removeListener('SIGINT', onSigint);
     progress.done();
     await pool.destroy();
