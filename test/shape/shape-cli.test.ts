@@ -1,0 +1,98 @@
+import { existsSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { describe, expect, it } from 'vitest';
+import { synthesizeTone } from '../../src/core/signal/synth.js';
+import { planKeying } from '../../src/core/timing/plan.js';
+import { encodeWav } from '../../src/io/wav-write.js';
+import { runCli } from '../helpers/cli.js';
+
+const dir = mkdtempSync(join(tmpdir(), 'keyform-shape-'));
+
+function writeRecording(name: string, edge: 'raised-cosine' | 'hard', riseMs: number): string {
+  const plan = planKeying('Q7ZKT TEST', { wpm: 20 });
+  const t = synthesizeTone({ marks: plan.marks, sampleRate: 16_000, toneHz: 700, levelDb: -6, edge, riseMs, padMs: 300 });
+  const path = join(dir, name);
+  writeFileSync(path, encodeWav({ sampleRate: 16_000, channels: [t.samples], encoding: 's16' }));
+  return path;
+}
+
+describe('keyform shape', () => {
+  const soft = writeRecording('soft.wav', 'raised-cosine', 5);
+  const hard = writeRecording('hard.wav', 'hard', 0);
+
+  it('reports a recording with the JSON field names of the issue', async () => {
+    const r = await runCli(['shape', soft, '--json']);
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.stdout);
+    for (const key of ['riseMs', 'fallMs', 'chirpHz', 'occupiedBandwidthHz', 'bandwidthAtDbcHz', 'necessaryBandwidthHz', 'designator', 'mask']) expect(j).toHaveProperty(key);
+    expect(Object.keys(j.riseMs).sort()).toEqual(['median', 'p10', 'p90']);
+    expect(Object.keys(j.bandwidthAtDbcHz).sort()).toEqual(['20', '40', '60']);
+    expect(j.mask).toHaveProperty('pass', true);
+    expect(j.mask).toHaveProperty('violations');
+    expect(Math.abs(j.riseMs.median - 5)).toBeLessThan(0.15);
+    // 20 wpm PARIS: B = 1/60 ms = 16.67 baud, K = 5 → 83.3 Hz, 83H3A1AAN (ITU-R SM.1138).
+    expect(j.necessaryBandwidthHz).toBeCloseTo(83.33, 0);
+    expect(j.designator).toBe('83H3A1AAN');
+    expect(j.spectrum.offsetHz.length).toBe(j.spectrum.dbc.length);
+    expect(j.spectrum.offsetHz.length).toBeLessThanOrEqual(2048);
+  });
+
+  it('prints a readable report with the cautions, and exits 1 when the mask is exceeded', async () => {
+    const r = await runCli(['shape', hard]);
+    expect(r.code).toBe(1);
+    expect(r.stdout).toMatch(/FAIL/);
+    expect(r.stdout).toMatch(/over by [\d.]+ dB at [+-]\d+ Hz/);
+    expect(r.stdout).toMatch(/does not certify/);
+    expect(r.stdout).toMatch(/wide filter/);
+    expect(r.stdout).toMatch(/0\.8 × wpm/);
+  });
+
+  it('predicts without a recording and sweeps the rise time', async () => {
+    const p = await runCli(['shape', '--predict', '--wpm', '25', '--rise', '5', '--json']);
+    expect(p.code).toBe(0);
+    const j = JSON.parse(p.stdout);
+    expect(j.kind).toBe('predicted');
+    expect(j.necessaryBandwidthHz).toBeCloseTo((25 / 1.2) * 5, 1);
+    const s = await runCli(['shape', '--predict', '--sweep', '--wpm', '20']);
+    expect(s.code).toBe(0);
+    expect(s.stdout).toMatch(/shortest rise time that meets the mask: [\d.]+ ms/);
+  });
+
+  it('uses --k 3 and a mask file', async () => {
+    const mask = join(dir, 'strict.csv');
+    writeFileSync(mask, 'offset_hz,max_dbc\n100,-60\n');
+    const r = await runCli(['shape', soft, '--k', '3', '--mask', mask, '--json']);
+    const j = JSON.parse(r.stdout);
+    expect(j.k).toBe(3);
+    expect(j.necessaryBandwidthHz).toBeCloseTo(50, 0);
+    expect(j.mask.pass).toBe(false);
+    expect(r.code).toBe(1);
+  });
+
+  it('writes the SVG plot and will not overwrite it without --force', async () => {
+    const svg = join(dir, 'plot.svg');
+    const a = await runCli(['shape', soft, '--plot', svg]);
+    expect(a.code).toBe(0);
+    expect(existsSync(svg)).toBe(true);
+    const text = readFileSync(svg, 'utf8');
+    expect(text).toMatch(/^<\?xml/);
+    expect(text).toMatch(/necessary bandwidth/);
+    expect(text).toMatch(/10 %/);
+    expect(text).toMatch(/90 %/);
+    const b = await runCli(['shape', soft, '--plot', svg]);
+    expect(b.code).toBe(2);
+    expect(b.stderr).toMatch(/already exists/);
+    const c = await runCli(['shape', soft, '--plot', svg, '--force']);
+    expect(c.code).toBe(0);
+  });
+
+  it('answers bad input with one line and exit 2', async () => {
+    for (const argv of [['shape'], ['shape', '--predict'], ['shape', join(dir, 'none.wav')], ['shape', soft, '--tone', '9000'], ['shape', '--predict', '--wpm', '500']]) {
+      const r = await runCli(argv);
+      expect(r.code).toBe(2);
+      expect(r.stderr).toMatch(/^keyform: /);
+      expect(r.stderr.trim().split('\n').length).toBe(1);
+    }
+  });
+});
