@@ -98,4 +98,34 @@ describe('keyform timing', () => {
     expect(Math.abs(j.alignment.offsetMs - -tone.startMs)).toBeLessThan(0.1 * 60);
     expect(run.code).toBe(0);
   });
+
+  it('reads the intended message from a file and a JSON timeline as input', async () => {
+    const msgPath = join(dir, 'message.txt');
+    writeFileSync(msgPath, `${MESSAGE}\n`);
+    const timeline = join(dir, 'observed.json');
+    writeFileSync(timeline, JSON.stringify({ marks: keyedMarks(MESSAGE, standardLengths(UNIT)) }));
+    const run = await runCli(['timing', timeline, '--expect-file', msgPath, '--wpm', String(WPM), '--json']);
+    expect(run.code).toBe(0);
+    const j = JSON.parse(run.stdout);
+    expect(j.source.kind).toBe('json');
+    expect(j.alignment.pass).toBe(true);
+    expect(j.alignment.maxErrorMs).toBeCloseTo(0, 6);
+  });
+
+  it('refuses two intended messages and a broken plan with exit code 2', async () => {
+    const twice = await runCli(['timing', clean, '--expect', MESSAGE, '--expect-file', clean]);
+    expect(twice.code).toBe(2);
+    expect(twice.stderr).toMatch(/^keyform: give the intended message once/);
+    const broken = join(dir, 'broken.json');
+    writeFileSync(broken, JSON.stringify({ unitMs: 60, marks: [[0, 60], [120, 300]], characters: [{ text: 'E', pattern: '.' }] }));
+    const run = await runCli(['timing', clean, '--expect-plan', broken]);
+    expect(run.code).toBe(2);
+    expect(run.stderr).toBe(`keyform: ${broken}: the characters' patterns cover 1 of the 2 marks\n`);
+  });
+
+  it('writes no colour codes when NO_COLOR is set', async () => {
+    const run = await runCli(['timing', compensated, '--expect', MESSAGE, '--wpm', String(WPM)]);
+    expect(run.stdout).not.toContain('\u001b[');
+  });
 });
+
