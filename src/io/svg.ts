@@ -83,7 +83,8 @@ export function shapeSvg(report: ShapeReport): string {
   let reach = 0;
   for (const f of sp.offsetHz) reach = Math.max(reach, Math.abs(f));
   const bw40 = report.bandwidthAtDbcHz['40'] ?? 0;
-  const half = Math.min(reach || 1000, Math.max(500, Math.ceil((1.5 * Math.max(bw40 / 2, (report.necessaryBandwidthHz ?? 0) / 2, 300)) / 250) * 250));
+  const lastMaskHz = report.mask.points.length ? report.mask.points[report.mask.points.length - 1]!.offsetHz : 500;
+  const half = Math.min(reach || 1000, Math.max(500, Math.ceil((1.2 * Math.max(bw40 / 2, (report.necessaryBandwidthHz ?? 0) / 2, lastMaskHz)) / 250) * 250));
   const a1: Axis = { x0: -half, x1: half, y0: -100, y1: 0, top: 0 };
   const s1 = scaler(a1);
   out.push(
@@ -153,7 +154,7 @@ export function shapeSvg(report: ShapeReport): string {
       0.1,
       'time from the 50 % crossing [ms]',
       'level (settled = 1)',
-      `Edges: ${e.rising.length} rising, ${e.falling.length} falling · rise ${rise !== null ? rise.toFixed(2) : '–'} ms, fall ${fall !== null ? fall.toFixed(2) : '–'} ms (10–90 %)`,
+      `Edges: ${e.rising.length} rising, ${e.falling.length} falling · rise ${rise !== null ? rise.toFixed(2) : '–'} ms, fall ${fall !== null ? fall.toFixed(2) : '–'} ms (10–90 %; a hard step reads ${report.envelope.resolutionMs.toFixed(2)} ms)`,
     ),
   );
   out.push(`<clipPath id="c2"><rect x="${s2.left}" y="${s2.top}" width="${s2.right - s2.left}" height="${s2.bottom - s2.top}"/></clipPath>`);

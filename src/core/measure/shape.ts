@@ -263,6 +263,12 @@ function composeReport(input: ShapeInputs, options: ShapeOptions, analysis: { ed
         'they are probably somewhat shorter than measured; a higher tone gives a wider envelope',
     );
   }
+  if (edgeKind === 'hard') {
+    warnings.push(
+      "hard edges spread past the envelope's band, which leaves a false phase swing after each edge: chirp below about 7 Hz " +
+        'cannot be told from it here (chirp-free hard keying reads up to 6.3 Hz in keyform\'s own runs)',
+    );
+  }
   const overs = measured.map((m) => m.overshootPct);
   const chirps = measureChirp(baseband, sampleRate, edges.marks, { windowMs: options.chirpWindowMs, resolutionMs });
   const chirpValues = chirps.map((c) => c.chirpHz);
