@@ -1,15 +1,20 @@
 /**
  * Quadrature mixer and first decimation stage: multiplies the input by e^(−j·2π·toneHz·n/sampleRate)
- * (a recursive complex oscillator, renormalised once per frame) and sums `samplesPerFrame` products
- * into one complex frame (a boxcar, i.e. first-order CIC, decimator). Per input sample this costs a
- * handful of multiply-adds; everything after it runs at the frame rate.
+ * and sums `samplesPerFrame` products into one complex frame (a boxcar, i.e. first-order CIC,
+ * decimator). The oscillator is split in two: a table of e^(−jωn) for the n inside one frame, and
+ * a phasor that advances once per frame, so each input sample costs two multiply-adds with no
+ * dependency between samples. Everything after the mixer runs at the frame rate.
  */
 export class Mixer {
   readonly samplesPerFrame: number;
-  private cosStep = 1;
-  private sinStep = 0;
-  private c = 1;
-  private s = 0;
+  private readonly tabRe: Float64Array;
+  private readonly tabIm: Float64Array;
+  /** e^(−jω·n0) at the start of the current frame. */
+  private pr = 1;
+  private pi = 0;
+  /** e^(−jω·samplesPerFrame): the phasor's step per frame. */
+  private stepRe = 1;
+  private stepIm = 0;
   private accRe = 0;
   private accIm = 0;
   private count = 0;
@@ -19,6 +24,7 @@ export class Mixer {
    * @param sampleRate - Input sample rate [Hz].
    * @param toneHz - Mixing frequency [Hz], 0…sampleRate/2.
    * @param samplesPerFrame - Decimation factor (samples summed per frame), ≥ 1.
+   * @example new Mixer(8000, 700, 20).process(sineAt700Hz, re, im) // frames of |z| = amplitude / 2
    */
   constructor(
     readonly sampleRate: number,
@@ -26,6 +32,8 @@ export class Mixer {
     samplesPerFrame: number,
   ) {
     this.samplesPerFrame = Math.max(1, Math.round(samplesPerFrame));
+    this.tabRe = new Float64Array(this.samplesPerFrame);
+    this.tabIm = new Float64Array(this.samplesPerFrame);
     this.setTone(toneHz);
   }
 
@@ -34,12 +42,17 @@ export class Mixer {
     return this.toneHzValue;
   }
 
-  /** Retunes the oscillator [Hz] without a phase jump. */
+  /** Retunes the oscillator [Hz]; the phase stays continuous at the next frame boundary. */
   setTone(toneHz: number): void {
     this.toneHzValue = toneHz;
     const w = (2 * Math.PI * toneHz) / this.sampleRate;
-    this.cosStep = Math.cos(w);
-    this.sinStep = Math.sin(w);
+    const n = this.samplesPerFrame;
+    for (let i = 0; i < n; i++) {
+      this.tabRe[i] = Math.cos(w * i);
+      this.tabIm[i] = -Math.sin(w * i);
+    }
+    this.stepRe = Math.cos(w * n);
+    this.stepIm = -Math.sin(w * n);
   }
 
   /**
@@ -48,35 +61,39 @@ export class Mixer {
    */
   process(chunk: Float32Array, outRe: Float64Array, outIm: Float64Array): number {
     const n = this.samplesPerFrame;
-    const cs = this.cosStep;
-    const ss = this.sinStep;
-    let c = this.c;
-    let s = this.s;
+    const tabRe = this.tabRe;
+    const tabIm = this.tabIm;
     let re = this.accRe;
     let im = this.accIm;
     let count = this.count;
     let frames = 0;
-    for (let i = 0; i < chunk.length; i++) {
-      const x = chunk[i]!;
-      re += x * c;
-      im -= x * s;
-      const c2 = c * cs - s * ss;
-      s = s * cs + c * ss;
-      c = c2;
-      if (++count === n) {
-        outRe[frames] = re / n;
-        outIm[frames] = im / n;
+    let i = 0;
+    const len = chunk.length;
+    while (i < len) {
+      const stop = Math.min(len, i + (n - count));
+      for (; i < stop; i++, count++) {
+        const x = chunk[i]!;
+        re += x * tabRe[count]!;
+        im += x * tabIm[count]!;
+      }
+      if (count === n) {
+        const pr = this.pr;
+        const pi = this.pi;
+        outRe[frames] = (re * pr - im * pi) / n;
+        outIm[frames] = (re * pi + im * pr) / n;
         frames++;
         re = 0;
         im = 0;
         count = 0;
-        const g = 1.5 - 0.5 * (c * c + s * s); // keep the oscillator on the unit circle
-        c *= g;
-        s *= g;
+        let nr = pr * this.stepRe - pi * this.stepIm;
+        let ni = pr * this.stepIm + pi * this.stepRe;
+        const g = 1.5 - 0.5 * (nr * nr + ni * ni); // keep the phasor on the unit circle
+        nr *= g;
+        ni *= g;
+        this.pr = nr;
+        this.pi = ni;
       }
     }
-    this.c = c;
-    this.s = s;
     this.accRe = re;
     this.accIm = im;
     this.count = count;

@@ -292,7 +292,7 @@ export class StreamDecoder {
         const gain = Math.min(1, this.slotMs / 6000);
         const mixer = this.mixer!;
         const next = Math.max(this.toneStartHz - 80, Math.min(this.toneStartHz + 80, mixer.toneHz + gain * dfHz));
-        if (next > 0 && next < this.sampleRate / 2) mixer.setTone(next);
+        if (Math.abs(next - mixer.toneHz) > 0.02 && next > 0 && next < this.sampleRate / 2) mixer.setTone(next);
       }
     }
     this.prevOn = on;

@@ -21,7 +21,7 @@ export interface CodeTrie {
 }
 
 /** Longest run of elements decoded as an unknown character (`*`). */
-export const UNKNOWN_DEPTH = 7;
+export const UNKNOWN_DEPTH = 6;
 
 /** Builds the code tree from the alphabet (ITU-R M.1677-1 patterns, prosigns and extensions). */
 export function buildCodeTrie(): CodeTrie {

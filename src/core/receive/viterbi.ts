@@ -27,6 +27,8 @@ const NEG = -1e300;
 const SPREAD = { dit: 0.3, dah: 0.3, elementGap: 0.35, letterGap: 0.35, wordGap: 0.35 } as const;
 /** Log prior of the gap after an element (roughly how often each follows a mark in plain text). */
 const GAP_PRIOR = { elementGap: Math.log(0.6), letterGap: Math.log(0.3), wordGap: Math.log(0.1) };
+/** Paths more than this far (natural log) below the best one are dropped (beam search). */
+const BEAM = 40;
 /** Log penalty of decoding a run that is not a known character. */
 const UNKNOWN_PENALTY = -8;
 
@@ -80,9 +82,17 @@ export class SequenceDecoder {
   /** Index of the last slot processed (slot 0 is the start, before any data). */
   t = 0;
 
+  private readonly mask: number;
+  private readonly rowBase: Int32Array;
+  /** Last slot at which each state was within the beam. */
+  private readonly lastAlive: Int32Array;
+
+  /** @param historySlots - Ring length [slots], a power of two ≥ 256. */
   constructor(trie: CodeTrie, model: DurationModel, historySlots = 2048) {
+    if (historySlots < 256 || (historySlots & (historySlots - 1)) !== 0) throw new RangeError(`historySlots must be a power of two ≥ 256 (got ${historySlots})`);
     this.trie = trie;
     this.historySlots = historySlots;
+    this.mask = historySlots - 1;
     this.n = trie.size;
     this.nStates = 2 * this.n + 2;
     this.stR = 2 * this.n;
@@ -99,6 +109,9 @@ export class SequenceDecoder {
     this.charPrior = new Float64Array(this.n);
     for (let i = 1; i < this.n; i++) this.charPrior[i] = trie.text[i] !== null ? 0 : UNKNOWN_PENALTY;
     this.llr = new Float64Array(H);
+    this.rowBase = new Int32Array(H);
+    this.lastAlive = new Int32Array(this.nStates).fill(-1_000_000);
+    this.lastAlive[this.stS] = 0;
     this.score[this.stS] = 0; // slot 0: idle
     this.setModel(model);
   }
@@ -128,12 +141,12 @@ export class SequenceDecoder {
    * @param q - Energy term A²/σ² of the slot, ≥ 0.
    */
   step(yRe: number, yIm: number, q: number): void {
-    const H = this.historySlots;
+    const M = this.mask;
     const S = this.nStates;
     const prevT = this.t;
     const t = ++this.t;
-    const ti = t % H;
-    const pi = prevT % H;
+    const ti = t & M;
+    const pi = prevT & M;
     this.yRe[ti] = this.yRe[pi]! + yRe;
     this.yIm[ti] = this.yIm[pi]! + yIm;
     this.yQ[ti] = this.yQ[pi]! + q;
@@ -141,10 +154,13 @@ export class SequenceDecoder {
     const score = this.score;
     const base = ti * S;
     score.fill(NEG, base, base + S);
+    const maxD = Math.min(Math.max(dit.max, dah.max, egap.max, lgap.max, wgap.max), t);
     const maxMark = Math.min(Math.max(dit.max, dah.max), t);
     const llr = this.llr;
+    const rowBase = this.rowBase;
+    for (let d = 1; d <= maxD; d++) rowBase[d] = ((t - d) & M) * S;
     for (let d = 1; d <= maxMark; d++) {
-      const ai = (t - d) % H;
+      const ai = (t - d) & M;
       const dr = this.yRe[ti]! - this.yRe[ai]!;
       const di = this.yIm[ti]! - this.yIm[ai]!;
       llr[d] = lnI0(2 * Math.sqrt(dr * dr + di * di)) - (this.yQ[ti]! - this.yQ[ai]!);
@@ -154,15 +170,18 @@ export class SequenceDecoder {
     const bpDur = this.bpDur;
     const bpPrev = this.bpPrev;
     // Marks: from the gap before them (element gap of the parent, or a letter/word gap at the root).
+    const lastAlive = this.lastAlive;
+    const rootAlive = Math.max(lastAlive[this.stR]!, lastAlive[this.stS]!);
     for (let node = 1; node < n; node++) {
       const table = symbol[node] === 1 ? dah : dit;
       const p = parent[node]!;
+      if ((p === 0 ? rootAlive : lastAlive[n + p]!) < t - table.max) continue;
       const hi = Math.min(table.max, t);
       let best = NEG;
       let bestD = 0;
       let bestPrev = -1;
       for (let d = table.min; d <= hi; d++) {
-        const ab = ((t - d) % H) * S;
+        const ab = rowBase[d]!;
         let src: number;
         let srcState: number;
         if (p === 0) {
@@ -187,11 +206,12 @@ export class SequenceDecoder {
     {
       const hi = Math.min(egap.max, t);
       for (let node = 1; node < n; node++) {
+        if (lastAlive[node]! < t - egap.max) continue;
         if (this.trie.dotChild[node]! < 0 && this.trie.dashChild[node]! < 0) continue;
         let best = NEG;
         let bestD = 0;
         for (let d = egap.min; d <= hi; d++) {
-          const src = score[((t - d) % H) * S + node]!;
+          const src = score[rowBase[d]! + node]!;
           if (src <= NEG) continue;
           const v = src + egap.logP[d]!;
           if (v > best) { best = v; bestD = d; }
@@ -209,7 +229,7 @@ export class SequenceDecoder {
       let best = NEG;
       let bestD = 0;
       for (let d = table.min; d <= hi; d++) {
-        const src = this.bestChar[(t - d) % H]!;
+        const src = this.bestChar[(t - d) & M]!;
         if (src <= NEG) continue;
         const v = src + table.logP[d]!;
         if (v > best) { best = v; bestD = d; }
@@ -217,7 +237,7 @@ export class SequenceDecoder {
       if (bestD > 0) {
         score[base + state] = best + prior;
         bpDur[base + state] = bestD;
-        bpPrev[base + state] = this.bestCharNode[(t - bestD) % H]!;
+        bpPrev[base + state] = this.bestCharNode[(t - bestD) & M]!;
       }
     };
     closeWith(lgap, GAP_PRIOR.letterGap, this.stR);
@@ -229,6 +249,16 @@ export class SequenceDecoder {
       bpDur[base + this.stS] = 1;
       bpPrev[base + this.stS] = this.stS;
     }
+    // Beam: drop what is far below the best path; remember what is still alive.
+    let top = NEG;
+    for (let s = 0; s < S; s++) if (score[base + s]! > top) top = score[base + s]!;
+    const floor = top - BEAM;
+    for (let s = 0; s < S; s++) {
+      const v = score[base + s]!;
+      if (v <= NEG) continue;
+      if (v < floor) score[base + s] = NEG;
+      else lastAlive[s] = t;
+    }
     // Best character ending at this slot, for the gaps that will close it.
     let bc = NEG;
     let bcNode = -1;
@@ -238,8 +268,10 @@ export class SequenceDecoder {
     }
     this.bestChar[ti] = bc;
     this.bestCharNode[ti] = bcNode;
-    // Keep numbers small: shift every live score by the best one now and then.
-    if (t % 256 === 0) {
+    // Keep numbers small: shift every live score by the best one now and then (float64 keeps
+    // ample precision in between).
+    if ((t & 0xffff) === 0) {
+      const H = this.historySlots;
       let top = NEG;
       for (let s = 0; s < S; s++) top = Math.max(top, score[base + s]!);
       if (top > NEG) {
