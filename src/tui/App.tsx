@@ -9,7 +9,7 @@ import type { Theme } from './theme.js';
 import { useAppEffects } from './use-effects.js';
 import { Footer, Header, HelpOverlay } from './widgets/Frame.js';
 import { computePlan } from './plan/plan-model.js';
-import { PlanScreen, stripLayout } from './plan/PlanScreen.js';
+import { exportLines, PlanScreen, stripLayout } from './plan/PlanScreen.js';
 import { PLAN_KEYS, planFooter } from './plan/plan-state.js';
 import { envelopeWindow, ReadScreen, readInnerWidth } from './read/ReadScreen.js';
 import { READ_KEYS, readFooter } from './read/read-state.js';
@@ -62,7 +62,7 @@ export function App({ services, theme, target, start, size: fixed }: AppProps) {
   const pageMs =
     frame.workspace === 'read'
       ? (envelopeWindow(state.read, readInnerWidth(width))?.pageMs ?? 1000)
-      : stripLayout('plan' in planned ? planned.plan : null, state.plan.zoom, width, bodyHeight).pageMs;
+      : stripLayout('plan' in planned ? planned.plan : null, state.plan.zoom, width, bodyHeight, exportLines(state.plan, width)).pageMs;
   useInput((input: string, key: KeyInfo) => dispatch({ type: 'key', input, key, pageMs }));
 
   if (frame.help) {

@@ -17,10 +17,21 @@ export interface StripLayout {
   pageMs: number;
 }
 
+/** Lines the export prompt or status takes below the strip at this width. */
+export function exportLines(state: PlanState, width: number): number {
+  const ex = state.exporter;
+  if (!ex) return state.status ? 1 : 0;
+  const caution = ex.format === 'wav' || ex.format === 'c' ? Math.ceil((SAFETY_NOTE.length + 1) / Math.max(20, width)) : 0;
+  return 1 + (ex.stage === 'confirm' ? 1 : 0) + caution;
+}
+
+/** Lines above the strip: heading, 7 settings, blank, 2 figures, prediction, blank, strip title. */
+const FIXED_LINES = 14;
+
 /** How the timeline strip is laid out for a plan in a screen of the given size (pure). */
-export function stripLayout(plan: KeyingPlan | null, zoom: 'detail' | 'whole', width: number, height: number): StripLayout {
+export function stripLayout(plan: KeyingPlan | null, zoom: 'detail' | 'whole', width: number, height: number, reserved = 1): StripLayout {
   const w = Math.max(20, width - 2);
-  const rows = Math.max(1, Math.min(6, Math.floor((height - 19) / 3) + 1));
+  const rows = Math.max(1, Math.min(6, Math.floor((height - FIXED_LINES - reserved) / 3)));
   if (!plan) return { msPerColumn: 10, rows, width: w, pageMs: 10 * w };
   const msPerColumn = zoom === 'detail' ? plan.unitMs / 2 : Math.max(plan.unitMs / 8, plan.totalMs / (w * rows));
   return { msPerColumn, rows, width: w, pageMs: Math.max(msPerColumn, (msPerColumn * w * rows) / 2) };
@@ -52,7 +63,7 @@ function predictionText(p: Prediction): { symbol: string; text: string; tone: 'g
 export function PlanScreen(props: { state: PlanState; planned: { plan: KeyingPlan } | { error: string }; width: number; height: number; theme: Theme }) {
   const { state, planned, width, height, theme } = props;
   const plan = 'plan' in planned ? planned.plan : null;
-  const layout = stripLayout(plan, state.zoom, width, height);
+  const layout = stripLayout(plan, state.zoom, width, height, exportLines(state, width));
   const labelWidth = 12;
   const valueWidth = Math.max(10, width - labelWidth - 4);
   const pred = predictionText(state.prediction);

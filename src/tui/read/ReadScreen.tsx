@@ -100,8 +100,13 @@ export function ReadScreen({ state, width, height, theme }: { state: ReadState; 
     }
     push(
       <Text wrap="truncate">
-        {` ${d.wpm > 0 ? d.wpm.toFixed(1) : '–'} wpm · tone ${d.toneHz !== null ? `${Math.round(d.toneHz)} Hz` : '–'} · SNR ${d.snrDb !== null ? `${d.snrDb.toFixed(1)} dB` : '–'} · ${d.characters.length} chars`}
-        {doubtful > 0 ? <Text color={colorFor(theme, 'warn')}>{` · ${doubtful} doubtful (?)`}</Text> : null}
+        {` ${d.wpm > 0 ? d.wpm.toFixed(1) : '–'} wpm · tone ${d.toneHz !== null ? `${Math.round(d.toneHz)} Hz` : '–'} · SNR ${d.snrDb !== null ? `${d.snrDb.toFixed(1)} dB` : '–'} (2500 Hz)`}
+      </Text>,
+    );
+    push(
+      <Text wrap="truncate">
+        {` ${d.characters.length} characters`}
+        {doubtful > 0 ? <Text color={colorFor(theme, 'warn')}>{` · ${doubtful} doubtful (? under it)`}</Text> : null}
       </Text>,
     );
     for (const w of d.warnings.slice(0, 2)) push(<StatusLine tone="warn" symbol={SYMBOLS.warn} text={w} theme={theme} />);

@@ -73,13 +73,15 @@ export function histogramLines(report: Record<string, unknown>, width: number, r
   gaps.forEach((c, i) => c > 0 && (last = Math.max(last, i)));
   const label = 7;
   const n = Math.min(last + 1, Math.max(8, width - label - 1));
-  const cols = histogramColumns([marks.slice(0, n), gaps.slice(0, n)], rows);
+  const padded = (a: number[]): number[] => Array.from({ length: n }, (_, i) => a[i] ?? 0);
+  const cols = histogramColumns([padded(marks), padded(gaps)], rows);
   const ruler = Array<string>(n).fill(' ');
   for (let k = 0; k < n; k++) {
     const u = k * bin;
     if (Math.abs(u - Math.round(u)) < 1e-9 && Math.round(u) % (n > 40 ? 2 : 1) === 0) {
       const t = String(Math.round(u));
-      if (k + t.length <= n && ruler.slice(k, k + t.length + 1).every((c) => c === ' ')) Array.from(t).forEach((c, i) => (ruler[k + i] = c));
+      const free = (k === 0 || ruler[k - 1] === ' ') && ruler.slice(k, k + t.length + 1).every((c) => c === ' ');
+      if (k + t.length <= n && free) Array.from(t).forEach((c, i) => (ruler[k + i] = c));
     }
   }
   const over = (x: unknown): string => (typeof x === 'number' && x > 0 ? ` +${x} longer` : '');

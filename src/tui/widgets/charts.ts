@@ -121,10 +121,13 @@ export function spectrumPlot(
   }
   let axis = ' '.repeat(labelW);
   const half = (opts.necessaryHz ?? 0) / 2;
+  const carrierColumn = Math.min(width - 1, Math.floor(width / 2)); // where offset 0 lands above
+  const colHz = (2 * spanHz) / width;
   for (let c = 0; c < width; c++) {
-    const f = -spanHz + ((c + 0.5) * 2 * spanHz) / width;
-    const centre = Math.abs(f) < spanHz / width;
-    axis += centre ? '┼' : half > 0 && Math.abs(f) <= half ? '═' : '─';
+    const lo = -spanHz + c * colHz;
+    const hi = lo + colHz;
+    const inBand = half > 0 && hi > -half && lo < half;
+    axis += c === carrierColumn ? '┼' : inBand ? '═' : '─';
   }
   lines.push(axis);
   const left = `-${formatHz(spanHz)}`;
