@@ -206,10 +206,13 @@ function roughOffset(obs: readonly Interval[], plan: readonly PlannedElement[], 
   let best = 0;
   let bestHits = -1;
   let bestSum = Infinity;
+  // Score on at most about 2000 planned elements, evenly spread, to bound the work on long logs.
+  const step = Math.max(1, Math.floor(plan.length / 2000));
   for (const off of candidates) {
     let hits = 0;
     let sum = 0;
-    for (const p of plan) {
+    for (let j = 0; j < plan.length; j += step) {
+      const p = plan[j]!;
       const t = p.startMs + off;
       const d = Math.abs(starts[nearestIndex(starts, t)]! - t);
       if (d < 0.5 * unit) {
@@ -264,15 +267,18 @@ export function alignTimelines(observed: { marks: readonly Interval[] }, plan: P
     // Candidate 2: edge times against a time map that follows the observation (other speed,
     // drift, longer gaps). Candidate 3: the symbol pairs themselves, for timing too far from the
     // plan for edge times to pair. The fewest unpaired elements win; ties go to edge times.
-    const bySymbols = pairBySymbols(obs, elementsIn, unit);
     let best = unpaired(byOffset);
-    const warp = warpFromPairs(obs, elementsIn, bySymbols);
-    if (warp !== null) {
-      const byWarp = pairByTime(obs, elementsIn, warp, unit);
-      const a = unpaired(byWarp);
-      if (a < best || (a === best && byWarp.cost < byOffset.cost - 1e-9)) [pairs, best] = [byWarp.pairs, a];
+    // No alignment leaves fewer than |observed − planned| elements unpaired: one that does is kept.
+    if (best > Math.abs(obs.length - elementsIn.length)) {
+      const bySymbols = pairBySymbols(obs, elementsIn, unit);
+      const warp = warpFromPairs(obs, elementsIn, bySymbols);
+      if (warp !== null) {
+        const byWarp = pairByTime(obs, elementsIn, warp, unit);
+        const a = unpaired(byWarp);
+        if (a < best || (a === best && byWarp.cost < byOffset.cost - 1e-9)) [pairs, best] = [byWarp.pairs, a];
+      }
+      if (unpaired({ pairs: bySymbols, cost: 0 }) < best) pairs = bySymbols;
     }
-    if (unpaired({ pairs: bySymbols, cost: 0 }) < best) pairs = bySymbols;
   }
   // The offset removed: given, or the median start difference of paired elements (robust to a few wrong starts).
   const diffs = pairs.flatMap((i, j) => (i >= 0 ? [obs[i]![0] - elementsIn[j]!.startMs] : []));

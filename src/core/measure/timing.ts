@@ -145,7 +145,8 @@ function classify(lens: readonly number[], gaps: readonly number[], hint: number
     const periods = lens.flatMap((x, i) => (!isDah[i] && i < gaps.length ? [x + gaps[i]!] : []));
     unit = median(dits);
     if (periods.length > 0) {
-      const low = periods.filter((p) => p < 1.45 * Math.min(...periods));
+      const shortest = periods.reduce((a, b) => Math.min(a, b), Infinity);
+      const low = periods.filter((p) => p < 1.45 * shortest);
       const u0 = median(low) / 2;
       const ditShare = median(dits) / u0;
       if (ditShare >= 0.4 && ditShare <= 1.6) unit = u0;
