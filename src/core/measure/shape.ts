@@ -65,7 +65,7 @@ export interface ShapeReport {
   overshootPct: { median: number | null; worst: number | null };
   /** Tone offset from the settled tone during the first `windowMs` of each mark [Hz]. */
   chirpHz: { median: number | null; worst: number | null; windowMs: number };
-  envelope: { passBandHz: [number, number]; resolutionMs: number; note: string };
+  envelope: { passBandHz: [number, number]; resolutionMs: number; stepOvershootPct: number; note: string };
   spectrum: {
     window: 'Hann';
     rbwHz: number;
@@ -219,13 +219,13 @@ export function estimateUnitMs(marks: ReadonlyArray<{ startMs: number; endMs: nu
   return r > 0.5 && r < 2 ? (dot + gap) / 2 : Math.min(dot, gap);
 }
 
-/** Measures the 10–90 % rise of a hard-keyed burst through the envelope filter: the envelope's own resolution. */
-function envelopeResolutionMs(sampleRate: number, toneHz: number): number {
+/** Runs a hard-keyed burst through the envelope: its 10–90 % rise and overshoot are the envelope's own. */
+function envelopeStep(sampleRate: number, toneHz: number): { riseMs: number; overshootPct: number } {
   const marks: Array<[number, number]> = [[0, 40]];
   const t = synthesizeTone({ marks, sampleRate, toneHz, levelDb: -6, edge: 'hard', riseMs: 0, padMs: 40 });
   const env = magnitude(complexBaseband(t.samples, sampleRate, { toneHz }));
-  const e = measureEdges(env, sampleRate);
-  return e.marks[0]?.rise?.rise10to90Ms ?? NaN;
+  const m = measureEdges(env, sampleRate).marks[0];
+  return { riseMs: m?.rise?.rise10to90Ms ?? NaN, overshootPct: m?.overshootPct ?? NaN };
 }
 
 interface ShapeInputs {
@@ -247,7 +247,8 @@ function composeReport(input: ShapeInputs, options: ShapeOptions, analysis: { ed
   const falls = measured.map((m) => m.fall!.rise10to90Ms);
   const riseMs = spreadOf(rises);
   const fallMs = spreadOf(falls);
-  const resolutionMs = envelopeResolutionMs(sampleRate, toneHz);
+  const step = envelopeStep(sampleRate, toneHz);
+  const resolutionMs = step.riseMs;
   const both = [...measured.map((m) => m.rise!), ...measured.map((m) => m.fall!)];
   // Share of the 10–90 % time spent below the half-way level in time order: 0.268 for an RC edge, rising or falling.
   const asymmetry = spreadOf([
@@ -264,6 +265,10 @@ function composeReport(input: ShapeInputs, options: ShapeOptions, analysis: { ed
     );
   }
   if (edgeKind === 'hard') {
+    warnings.push(
+      `the edges are about as fast as the envelope can show (a hard step reads ${resolutionMs.toFixed(2)} ms with ${step.overshootPct.toFixed(1)} % overshoot ` +
+        'through it): the true rise and fall are shorter, and the overshoot is mostly the envelope\'s own ringing',
+    );
     warnings.push(
       "hard edges spread past the envelope's band, which leaves a false phase swing after each edge: chirp below about 7 Hz " +
         'cannot be told from it here (chirp-free hard keying reads up to 6.3 Hz in keyform\'s own runs)',
@@ -344,6 +349,7 @@ function composeReport(input: ShapeInputs, options: ShapeOptions, analysis: { ed
     envelope: {
       passBandHz: [round(baseband.passBandHz[0], 1)!, round(baseband.passBandHz[1], 1)!],
       resolutionMs: round(resolutionMs, 3)!,
+      stepOvershootPct: round(step.overshootPct, 2)!,
       note: `rise and fall measured on a ${Math.round(baseband.passBandHz[0])}–${Math.round(baseband.passBandHz[1])} Hz analytic envelope (a hard step reads ${resolutionMs.toFixed(2)} ms through it). ${FILTER_NOTE}`,
     },
     spectrum: {
