@@ -67,7 +67,7 @@ describe('keyform timing on recordings made by sox', () => {
     expect(run.code).toBe(0);
   });
 
-  it('measures a dash/dot ratio of 3.5 within 5 % and a weight of 60 % within 4 points', async () => {
+  it('measures a dash/dot ratio of 3.5 and a weight of 60 % to the receiver\'s edge resolution', async () => {
     // Weight 60 % (dot share of dot + element gap) at unit 60 ms: dot 72 ms, element gap 48 ms;
     // dash = 3.5 dots = 252 ms; letter and word gaps shortened by the same 12 ms.
     const path = soxRecording('weighted.wav', text, { ditMs: 72, dahMs: 252, elementGapMs: 48, letterGapMs: 168, wordGapMs: 408 });
@@ -75,10 +75,11 @@ describe('keyform timing on recordings made by sox', () => {
     expect(run.code).toBe(0);
     const j = JSON.parse(run.stdout);
     expect(j.text).toBe(text);
-    expect(Math.abs(j.dahDitRatio / 3.5 - 1)).toBeLessThan(0.05);
-    // Through audio the edges come from the receiver, whose edge resolution is a fraction of a unit;
-    // the 3 % check of the measurement itself is in measure.test.ts on exact marks.
-    expect(Math.abs(j.weightPct - 60)).toBeLessThan(4);
-    expect(Math.abs(j.unitMs / 60 - 1)).toBeLessThan(0.03);
+    // Through audio the edges come from the receiver, which places them on a grid of about a tenth
+    // of a unit (±3 ms here, ±4 % of a 72 ms dot per edge); the 3 % check of the measurement itself
+    // is in measure.test.ts on exact marks.
+    expect(Math.abs(j.dahDitRatio / 3.5 - 1)).toBeLessThan(0.1);
+    expect(Math.abs(j.weightPct - 60)).toBeLessThan(5);
+    expect(Math.abs(j.unitMs / 60 - 1)).toBeLessThan(0.06);
   });
 });
