@@ -127,5 +127,10 @@ describe('keyform timing', () => {
     const run = await runCli(['timing', compensated, '--expect', MESSAGE, '--wpm', String(WPM)]);
     expect(run.stdout).not.toContain('\u001b[');
   });
+
+  it('warns when the measured speed is far from the planned one', async () => {
+    const run = await runCli(['timing', clean, '--expect', MESSAGE]); // planned at the default 20 wpm
+    expect(run.stderr).toContain(`keyform: measured ${WPM.toFixed(1)} wpm, but the intended message is planned at 20 wpm (set --wpm?)`);
+  });
 });
 

@@ -245,6 +245,10 @@ local regulations; mind RF exposure.`,
         { unitMsHint: plan ? plan.unitMs : undefined, histogramBinUnits: o.bin, histogramMaxUnits: o.range },
       );
       for (const w of report.warnings) ctx.warn(w);
+      if (plan && Math.abs(plan.unitMs / report.unitMs - 1) > 0.05) {
+        const hint = o.expectPlan === undefined ? ' (set --wpm?)' : '';
+        ctx.warn(`measured ${report.wpm.toFixed(1)} wpm, but the intended message is planned at ${plan.wpm} wpm${hint}`);
+      }
       const alignment = plan ? alignTimelines({ marks: observed.marks }, plan, { tolerancePct: o.tolerance }) : null;
       if (alignment && !alignment.pass) ctx.setExitCode(1);
       if (o.json) {
