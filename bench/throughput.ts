@@ -16,8 +16,8 @@
  * --jobs 1 and --jobs 2 over the same files.
  */
 import { spawnSync } from 'node:child_process';
-import { closeSync, existsSync, mkdirSync, openSync, renameSync, rmSync, statSync, writeSync } from 'node:fs';
-import { availableParallelism, tmpdir } from 'node:os';
+import { closeSync, existsSync, mkdirSync, openSync, readFileSync, renameSync, rmSync, statSync, writeFileSync, writeSync } from 'node:fs';
+import { availableParallelism, loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { addNoise, noiseSigmaForSnr, seededRandom } from '../src/core/signal/noise.js';
@@ -45,6 +45,7 @@ async function child(mode: 'read' | 'decode', path: string): Promise<void> {
     return;
   }
   const t0 = performance.now();
+  const cpu0 = process.cpuUsage();
   const audio = await openAudio(path, { streamAboveBytes: 0 });
   const decoder = receiver ? new receiver.StreamDecoder(audio.sampleRate) : null;
   let frames = 0;
@@ -56,12 +57,14 @@ async function child(mode: 'read' | 'decode', path: string): Promise<void> {
   }
   const result = decoder?.finish();
   const wallS = (performance.now() - t0) / 1000;
+  const cpu = process.cpuUsage(cpu0);
   process.stdout.write(
     JSON.stringify({
       audioS: frames / audio.sampleRate,
       wallS,
+      cpuS: (cpu.user + cpu.system) / 1e6,
       maxRssMB: process.resourceUsage().maxRSS / 1024,
-      characters: result ? result.text.replace(/\s/g, '').length : null,
+      characters: result ? result.characters.length : null,
       wpm: result?.wpm ?? null,
       snrDb: result?.snrDb ?? null,
       checksum,
@@ -120,7 +123,7 @@ function generate(path: string, sampleRate: number, seconds: number, seed: numbe
   return characters;
 }
 
-interface ChildResult { audioS: number; wallS: number; maxRssMB: number; characters: number | null; wpm: number | null; snrDb: number | null; error?: string }
+interface ChildResult { audioS: number; wallS: number; cpuS: number; maxRssMB: number; characters: number | null; wpm: number | null; snrDb: number | null; error?: string }
 
 function runChild(mode: 'read' | 'decode', path: string): ChildResult {
   const self = fileURLToPath(import.meta.url);
@@ -148,7 +151,8 @@ const say = (s: string): void => {
   process.stdout.write(`${s}\n`);
   lines.push(s);
 };
-say(`keyform throughput benchmark — node ${process.version}, ${availableParallelism()} CPUs, files in ${dir}`);
+const load = (): string => loadavg().map((x) => x.toFixed(2)).join(' ');
+say(`keyform throughput benchmark — node ${process.version}, ${availableParallelism()} CPUs, load average ${load()} at start, files in ${dir}`);
 say(`audio: ${minutes} min of 20–25 WPM traffic, 700 Hz, 5 ms raised-cosine edges, +${SNR_DB} dB SNR (key-down carrier / noise in 2500 Hz), 16-bit mono WAV, seed ${SEED}`);
 const receiverBuilt = (await loadReceiver()) !== null;
 if (!receiverBuilt) say('note: the receiver (src/core/receive) is not built yet: only the read floor is measured');
@@ -159,11 +163,14 @@ for (const sampleRate of [48_000, 8000]) {
   if (!existsSync(path)) {
     const t0 = performance.now();
     const chars = generate(path, sampleRate, minutes * 60, SEED);
+    writeFileSync(`${path}.chars`, String(chars));
     process.stderr.write(`generated ${path} (${chars} characters, ${(statSync(path).size / 1e6).toFixed(0)} MB) in ${((performance.now() - t0) / 1000).toFixed(1)} s\n`);
   }
   const floor = runChild('read', path);
   const decode = receiverBuilt ? runChild('decode', path) : null;
   const rtf = (r: ChildResult | null): string => (r && !r.error ? Math.round(r.audioS / r.wallS).toLocaleString('en-US') : '–');
+  const rtfCpu = (r: ChildResult | null): string => (r && !r.error ? Math.round(r.audioS / r.cpuS).toLocaleString('en-US') : '–');
+  const sent = Number(readFileSync(`${path}.chars`, 'utf8'));
   rows.push([
     `${sampleRate / 1000} kHz`,
     `${(floor.audioS / 60).toFixed(0)} min`,
@@ -171,10 +178,11 @@ for (const sampleRate of [48_000, 8000]) {
     `${floor.wallS.toFixed(2)} s`,
     `${rtf(floor)}×`,
     decode ? `${decode.wallS.toFixed(2)} s` : '–',
-    decode ? `${rtf(decode)}×` : '–',
+    decode ? `${rtf(decode)}× (${rtfCpu(decode)}×)` : '–',
     decode ? `${(decode.wallS / floor.wallS).toFixed(1)}×` : '–',
     `${(decode ?? floor).maxRssMB.toFixed(0)} MB`,
     decode?.wpm != null ? `${decode.wpm.toFixed(1)} / ${decode.snrDb?.toFixed(1) ?? '–'} dB` : '–',
+    `${sent} / ${decode?.characters ?? '–'}`,
   ]);
 }
 function printTable(head: string[], rows: string[][]): void {
@@ -184,9 +192,9 @@ function printTable(head: string[], rows: string[][]): void {
   say(`|${widths.map((w) => '-'.repeat(w + 2)).join('|')}|`);
   for (const r of rows) say(line(r));
 }
-const head = ['audio', 'length', 'file', 'read+convert', 'floor RTF', 'decode', 'decode RTF', 'decode/floor', 'peak RSS', 'wpm / SNR est.'];
+const head = ['audio', 'length', 'file', 'read+convert', 'floor RTF', 'decode', 'decode RTF wall (CPU)', 'decode/floor', 'peak RSS', 'wpm / SNR est.', 'chars sent / decoded'];
 say('');
-say('Streaming read and decode, one core (RTF = audio seconds per wall second; peak RSS of the decoding process)');
+say('Streaming read and decode, one core (RTF = audio seconds per wall second, in brackets per CPU second; peak RSS of the decoding process)');
 printTable(head, rows);
 
 // Batch speed-up: the built CLI over N files on 1 and on 2 worker threads.
@@ -210,5 +218,6 @@ if (!existsSync(bin) || !existsSync(fileURLToPath(new URL('../dist/cli/batch-wor
   ]);
   if (one.status !== 0 || two.status !== 0) say(`(batch exit codes ${one.status} and ${two.status}: ${(one.stderr + two.stderr).trim().split('\n').slice(-2).join(' / ')})`);
 }
+say(`load average ${load()} at the end (other processes on the machine slow the wall-clock figures)`);
 if (!process.argv.includes('--keep')) rmSync(dir, { recursive: true, force: true });
 else say(`(files kept in ${dir})`);

@@ -39,7 +39,7 @@ export type BatchVerdict = 'ok' | 'no signal' | 'mask fail' | 'error';
 
 /** Column order of the report files. */
 export const BATCH_COLUMNS: readonly (keyof BatchRow)[] = [
-  'file', 'durationS', 'text', 'wpm', 'toneHz', 'snrDb', 'riseMs', 'occupiedBandwidthHz', 'jitterPct', 'verdict', 'error',
+  'file', 'durationS', 'text', 'wpm', 'toneHz', 'snrDb', 'riseMs', 'occupiedBandwidthHz', 'jitterPct', 'verdict', 'error', 'warnings',
 ];
 
 export interface AnalyzeOptions extends Pick<OpenAudioOptions, 'raw' | 'rate' | 'channels' | 'streamAboveBytes' | 'stdin'> {

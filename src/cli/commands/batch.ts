@@ -56,7 +56,7 @@ export function collectInputs(args: readonly string[]): string[] {
 
 function csvField(value: unknown): string {
   if (value === null || value === undefined) return '';
-  const s = String(value);
+  const s = Array.isArray(value) ? value.join(' | ') : String(value);
   return /[",\n\r]|^\s|\s$/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
 }
 
@@ -65,7 +65,7 @@ export function csvHeader(): string {
   return `${BATCH_COLUMNS.join(',')}\n`;
 }
 
-/** One row as a report line: CSV (the columns of BATCH_COLUMNS) or JSON Lines (the whole row). */
+/** One row as a report line: CSV (the columns of BATCH_COLUMNS; warnings joined by ` | `) or JSON Lines (the whole row). */
 export function formatRow(row: BatchRow, format: ReportFormat): string {
   if (format === 'jsonl') return `${JSON.stringify(row)}\n`;
   return `${BATCH_COLUMNS.map((c) => csvField(row[c])).join(',')}\n`;
@@ -186,7 +186,8 @@ function fmt(x: number | null, digits: number, width: number): string {
 /** One human-readable line per file, for stdout while the batch runs. */
 export function formatRowLine(row: BatchRow, nameWidth: number): string {
   const name = row.file.length > nameWidth ? `…${row.file.slice(row.file.length - nameWidth + 1)}` : row.file.padEnd(nameWidth);
-  const tail = row.verdict === 'error' ? row.error ?? '' : row.text;
+  const notes = row.warnings.length > 0 ? `  (${row.warnings.length} warning${row.warnings.length > 1 ? 's' : ''})` : '';
+  const tail = row.verdict === 'error' ? row.error ?? '' : `${row.text}${notes}`;
   return `${name} ${fmt(row.durationS, 1, 7)} ${fmt(row.wpm, 1, 5)} ${fmt(row.toneHz, 0, 5)} ${fmt(row.snrDb, 1, 5)} ${fmt(row.riseMs, 2, 6)} ${fmt(row.occupiedBandwidthHz, 0, 6)}  ${row.verdict.padEnd(9)} ${tail}`;
 }
 
