@@ -91,6 +91,26 @@ describe('measureTiming of Farnsworth spacing', () => {
   });
 });
 
+describe('measureTiming of Farnsworth spacing in one word', () => {
+  // Bloom (QEX 1990) at c = 20, s = 8: the letter gaps alone look like word gaps at 20 wpm.
+  const taMs = ((60 * 20 - 37.2 * 8) / (8 * 20)) * 1000;
+  const tc = (3 * taMs) / 19;
+  const tw = (7 * taMs) / 19;
+  const marks = keyedMarks('Q7ZKT', { ...standardLengths(60), letterGapMs: tc, wordGapMs: tw });
+
+  it('keeps letter gaps as letter gaps given the plan\'s letter/word boundary', () => {
+    const r = measureTiming({ marks }, { unitMsHint: 60, wordSplitUnits: Math.sqrt(tc * tw) / 60 });
+    expect(r.gapUnits.letter!.count).toBe(4);
+    expect(r.gapUnits.letter!.median).toBeCloseTo(tc / 60, 9);
+    expect(r.gapUnits.word).toBeNull();
+    expect(r.text).toBe('Q7ZKT');
+  });
+
+  it('reads them as word gaps without it (5-unit cut-off)', () => {
+    expect(measureTiming({ marks }).text).toBe('Q 7 Z K T');
+  });
+});
+
 describe('measureTiming jitter and drift', () => {
   const text = 'Q7ZKT DE Q3ABC TEST TEST TEST PSE K Q3ABC DE Q7ZKT TEST K';
 

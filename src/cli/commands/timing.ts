@@ -69,7 +69,10 @@ async function readObserved(path: string, o: TimingCliOptions, ctx: CommandConte
   return { kind: 'capture', marks: cap.marks, details: { timeUnit: cap.timeUnit, rows: cap.rows, stateColumn: cap.stateColumn }, warnings: cap.warnings };
 }
 
-async function expectedPlan(o: TimingCliOptions, ctx: CommandContext): Promise<(PlanElements & { text: string; wpm: number }) | null> {
+/** The intended keying: elements to align with, and its full letter and word gaps [ms] when known. */
+type Expected = PlanElements & { text: string; wpm: number; letterWordGapsMs: { letter: number; word: number } | null };
+
+async function expectedPlan(o: TimingCliOptions, ctx: CommandContext): Promise<Expected | null> {
   const given = [o.expect, o.expectFile, o.expectPlan].filter((x) => x !== undefined).length;
   if (given > 1) throw new InputError('give the intended message once: --expect TEXT, --expect-file FILE or --expect-plan PLAN.json');
   if (o.expectPlan !== undefined) {
@@ -86,7 +89,8 @@ async function expectedPlan(o: TimingCliOptions, ctx: CommandContext): Promise<(
   // planFromCli reads only the planning fields, which timing shares with encode.
   const plan = planFromCli(await messageFrom(o.expect, o.expectFile), o as unknown as EncodeCliOptions);
   for (const w of plan.warnings) ctx.warn(w);
-  return plan;
+  const extra = plan.ditMs - plan.unitMs;
+  return { ...plan, letterWordGapsMs: { letter: plan.gapsMs.letter + extra, word: plan.gapsMs.word + extra } };
 }
 
 /** Rounds every number in a JSON-bound value to `digits` decimals (exact core values print as 60, not 59.99999999999999). */
@@ -242,7 +246,13 @@ local regulations; mind RF exposure.`,
       for (const w of observed.warnings) ctx.warn(w);
       const report = measureTiming(
         { marks: observed.marks },
-        { unitMsHint: plan ? plan.unitMs : undefined, histogramBinUnits: o.bin, histogramMaxUnits: o.range },
+        {
+          unitMsHint: plan ? plan.unitMs : undefined,
+          // The plan's letter/word boundary (geometric mean of its gaps), so Farnsworth letter gaps stay letter gaps.
+          wordSplitUnits: plan?.letterWordGapsMs ? Math.sqrt(plan.letterWordGapsMs.letter * plan.letterWordGapsMs.word) / plan.unitMs : undefined,
+          histogramBinUnits: o.bin,
+          histogramMaxUnits: o.range,
+        },
       );
       for (const w of report.warnings) ctx.warn(w);
       if (plan && Math.abs(plan.unitMs / report.unitMs - 1) > 0.05) {

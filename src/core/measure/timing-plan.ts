@@ -13,6 +13,8 @@ export interface PlanFromJson extends PlanElements {
   wpm: number;
   marks: Interval[];
   characters: { text: string; pattern: string }[];
+  /** Full letter and word gaps [ms] as timed before weighting (from `gapsMs` + the mark lengthening), when the JSON has them. */
+  letterWordGapsMs: { letter: number; word: number } | null;
 }
 
 const isNum = (x: unknown): x is number => typeof x === 'number' && Number.isFinite(x);
@@ -55,7 +57,14 @@ export function planElementsFromJson(value: unknown, name: string): PlanFromJson
   } else {
     marks.forEach(([a, b]) => elements.push({ startMs: a, endMs: b, kind: b - a > 2 * unitMs ? 'dah' : 'dit', charIndex: -1 }));
   }
+  let letterWordGapsMs: PlanFromJson['letterWordGapsMs'] = null;
+  const g = o.gapsMs as Record<string, unknown> | undefined;
+  if (g && isNum(g.letter) && isNum(g.word)) {
+    const extra = isNum(o.ditMs) ? o.ditMs - unitMs : 0;
+    letterWordGapsMs = { letter: g.letter + extra, word: g.word + extra };
+  }
   return {
+    letterWordGapsMs,
     text: typeof o.text === 'string' ? o.text : '',
     wpm: isNum(o.wpm) ? o.wpm : 1200 / unitMs,
     unitMs,

@@ -27,6 +27,13 @@ export interface TimingOptions {
    * reported unit is always measured.
    */
   unitMsHint?: number;
+  /**
+   * Boundary between letter and word gaps [units], 2…1000, used when the longer gaps do not fall
+   * into two clear groups (then they are split where they separate best); e.g. the geometric mean
+   * of the intended plan's letter and word gaps, which keeps the Farnsworth letter gaps of a
+   * one-word message letter gaps. Default 5 (cut-offs near 2 and 5 units are common practice).
+   */
+  wordSplitUnits?: number;
   /** Histogram bin width [units], 0.05…2; default 0.25. */
   histogramBinUnits?: number;
   /** Centre of the last histogram bin [units], 2…200; longer intervals are counted in `marksOver`/`gapsOver`. Default 10. */
@@ -125,7 +132,13 @@ interface Classification {
 }
 
 /** Classifies marks (dit/dah) and gaps (element/letter/word) and estimates the unit. */
-function classify(lens: readonly number[], gaps: readonly number[], hint: number | undefined, warnings: string[]): Classification {
+function classify(
+  lens: readonly number[],
+  gaps: readonly number[],
+  hint: number | undefined,
+  wordSplitUnits: number | undefined,
+  warnings: string[],
+): Classification {
   const split = splitTwoClasses(lens);
   const twoKinds = split !== null && split.highMean / split.lowMean >= 1.7;
   let isDah: boolean[];
@@ -157,12 +170,10 @@ function classify(lens: readonly number[], gaps: readonly number[], hint: number
   for (let iter = 0; iter < 4; iter++) {
     const extra = dits.length > 0 ? median(dits) - unit : median(dahs) - 3 * unit;
     const corrected = gaps.map((g) => g + extra);
-    gapClass = corrected.map((c) => (c < 2 * unit ? 'element' : c < 5 * unit ? 'letter' : 'word'));
     const longer = corrected.filter((c) => c >= 2 * unit);
     const s = splitTwoClasses(longer);
-    if (s !== null && s.highMean / s.lowMean >= 1.6 && s.highMean >= 4 * unit) {
-      gapClass = corrected.map((c) => (c < 2 * unit ? 'element' : c < s.threshold ? 'letter' : 'word'));
-    }
+    const boundary = s !== null && s.highMean / s.lowMean >= 1.6 && s.highMean >= 4 * unit ? s.threshold : (wordSplitUnits ?? 5) * unit;
+    gapClass = corrected.map((c) => (c < 2 * unit ? 'element' : c < boundary ? 'letter' : 'word'));
     const el = gaps.filter((_, i) => gapClass[i] === 'element');
     let next: number;
     if (dits.length > 0 && el.length > 0) next = (median(dits) + median(el)) / 2;
@@ -212,7 +223,8 @@ export function measureTiming(timeline: { marks: readonly Interval[] }, options:
 
   const lens = marks.map(([a, b]) => b - a);
   const gaps = marks.slice(1).map(([a], i) => a - marks[i]![1]);
-  const { isDah, gapClass, unitMs: unit } = classify(lens, gaps, hint, warnings);
+  const split = options.wordSplitUnits === undefined ? undefined : checkRange('letter/word boundary', options.wordSplitUnits, 2, 1000, 'units');
+  const { isDah, gapClass, unitMs: unit } = classify(lens, gaps, hint, split, warnings);
 
   const dits = lens.filter((_, i) => !isDah[i]);
   const dahs = lens.filter((_, i) => isDah[i]);
