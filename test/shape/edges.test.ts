@@ -74,6 +74,21 @@ describe('rise and fall 10–90 %', () => {
     }
   });
 
+  it('measures a 10 % overshoot after the rise', () => {
+    // 5 ms linear ramp, then a half-sine bump of +10 % lasting 8 ms, then the settled level.
+    const x = new Float32Array(Math.round(0.6 * fs));
+    for (let n = 0; n < x.length; n++) {
+      const t = (n * 1000) / fs - 100; // ms from key-down
+      let env = 0;
+      if (t >= 0 && t < 300) env = t < 6.25 ? t / 6.25 : t < 14.25 ? 1 + 0.1 * Math.sin((Math.PI * (t - 6.25)) / 8) : 1;
+      else if (t >= 300 && t < 306.25) env = 1 - (t - 300) / 6.25;
+      x[n] = 0.5 * env * Math.sin((2 * Math.PI * toneHz * n) / fs);
+    }
+    const { analysis } = medianRise(x, fs, toneHz);
+    expect(analysis.marks).toHaveLength(1);
+    expect(Math.abs(analysis.marks[0]!.overshootPct - 10)).toBeLessThan(0.5);
+  });
+
   it('leaves out marks too short to settle, with a warning', () => {
     // 10 ms raised-cosine edges (ramp 16.9 ms) on 12 ms marks never reach a plateau.
     const x = keyedTone('raised-cosine', 10 / SHAPES['raised-cosine'].rise10to90(1), fs, toneHz, 12, 100, 3);

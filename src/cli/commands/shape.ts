@@ -106,10 +106,10 @@ export function registerShape(program: Command, ctx: CommandContext): void {
     .argument('[file]', 'WAV recording of the keyed tone (mono, or pick a channel)')
     .summary('rise and fall, key clicks, chirp, occupied and necessary bandwidth, spectral mask')
     .description(
-      'Measure the keying shape of a recording — 10–90 % rise and fall per mark, overshoot, chirp, averaged\n' +
-        'spectrum, occupied bandwidth (ITU-R SM.328), x-dB bandwidths, click levels, necessary bandwidth and\n' +
-        'designator (ITU-R SM.1138) and a pass/fail check against a spectral mask — or predict the same\n' +
-        'report from a speed and an edge shape (--predict), or tabulate rise time against bandwidth (--sweep).',
+      'Measure the keying shape of a recording: 10–90 % rise and fall per mark, overshoot, chirp, averaged spectrum, ' +
+        'occupied bandwidth (ITU-R SM.328), x-dB bandwidths, click levels, necessary bandwidth and designator (ITU-R SM.1138), ' +
+        'and a pass/fail check against a spectral mask. Or predict the same report from a speed and an edge shape (--predict), ' +
+        'or tabulate rise time against bandwidth (--sweep).',
     )
     .option('--tone <hz>', 'tone frequency (Hz); default: the strongest peak between 100 Hz and 5 kHz', numberIn('--tone', 1, 96_000))
     .option('--channel <n>', 'channel of a multi-channel WAV (1 = first)', numberIn('--channel', 1, 64, { integer: true }), 1)
@@ -120,7 +120,7 @@ export function registerShape(program: Command, ctx: CommandContext): void {
     .option('--predict', 'predict the report from --wpm, --rise and --edge instead of measuring a recording')
     .option('--sweep', 'table of rise time against occupied and −40 dBc bandwidth, with the shortest rise that meets the mask')
     .option('--rise <ms>', '--predict: 10–90 % rise and fall time (ms, 0–50)', numberIn('--rise', 0, 50), 5)
-    .addOption(new Option('--edge <kind>', '--predict/--sweep: edge shape').argParser(oneOf('--edge', EDGE_KINDS)).default('raised-cosine'))
+    .addOption(new Option('--edge <kind>', `--predict/--sweep: edge shape (${EDGE_KINDS.join(', ')})`).argParser(oneOf('--edge', EDGE_KINDS)).default('raised-cosine'))
     .option('--message <text>', "--predict/--sweep: text keyed for the prediction (default 'PARIS PARIS')")
     .option('--chirp-window <ms>', 'how long after key-down to look for chirp (ms, 0.5–200)', numberIn('--chirp-window', 0.5, 200), 10)
     .option('--json', 'print the report as JSON')

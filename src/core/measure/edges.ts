@@ -25,7 +25,7 @@ export interface MarkShape {
   baseLevel: number;
   /** Plateau noise: standard deviation over the settled part (less its 1 ms moving average) / (settled − base). */
   plateauNoise: number;
-  /** Peak above the settled level during the first half of the mark [%]. */
+  /** Peak (0.5 ms running mean) above the settled level during the first half of the mark [%]; 0 when within 3 σ of the plateau noise. */
   overshootPct: number;
   rise: EdgeMeasurement | null;
   fall: EdgeMeasurement | null;
@@ -79,6 +79,21 @@ function residualStdOf(env: Float32Array, i0: number, i1: number, win: number): 
     if (c + h + 1 < b) run += env[c + h + 1]! - env[c - h]!;
   }
   return n > 0 ? Math.sqrt(s2 / n) : 0;
+}
+
+/** Standard deviation of env[i0, i1). */
+function stdOf(env: Float32Array, i0: number, i1: number): number {
+  let s = 0;
+  let s2 = 0;
+  let n = 0;
+  for (let i = Math.max(0, i0); i < Math.min(env.length, i1); i++) {
+    s += env[i]!;
+    s2 += env[i]! * env[i]!;
+    n++;
+  }
+  if (n < 2) return 0;
+  const m = s / n;
+  return Math.sqrt(Math.max(0, s2 / n - m * m));
 }
 
 /** Sorted copy of a numeric list. */
@@ -236,15 +251,23 @@ export function measureEdges(env: Float32Array, sampleRate: number, options: Edg
     const baseAfter = gapAfter < 4 ? offLevel : medianOf(env, b + Math.floor(0.25 * gapAfter), nextStart - Math.floor(0.25 * gapAfter));
     const span = settled - baseBefore;
     const plateauNoise = span > 0 ? residualStdOf(env, a + Math.floor(0.25 * D), b - Math.floor(0.25 * D), Math.round(sampleRate / 1000)) / span : Infinity;
+    // Peak of a 0.5 ms running mean, so that noise on the plateau does not read as overshoot.
+    const w = Math.max(1, Math.round(sampleRate / 2000));
     let peak = 0;
-    for (let i = a; i < a + D / 2; i++) peak = Math.max(peak, env[i]!);
+    let run = 0;
+    for (let i = a; i < a + D / 2; i++) {
+      run += env[i]!;
+      if (i - a >= w) run -= env[i - w]!;
+      if (i - a >= w - 1) peak = Math.max(peak, run / w);
+    }
     const mark: MarkShape = {
       startMs: a * msPerSample,
       endMs: b * msPerSample,
       settledLevel: settled,
       baseLevel: baseBefore,
       plateauNoise,
-      overshootPct: settled > 0 ? Math.max(0, (peak / settled - 1) * 100) : 0,
+      // An excess within 3 σ of the plateau's spread is not told from the noise: reported as 0.
+      overshootPct: settled > 0 && peak - settled > 3 * stdOf(env, a + Math.floor(0.25 * D), b - Math.floor(0.25 * D)) ? (peak / settled - 1) * 100 : 0,
       rise: null,
       fall: null,
       problem: null,

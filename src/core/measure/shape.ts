@@ -62,6 +62,8 @@ export interface ShapeReport {
   riseMs: Spread;
   fallMs: Spread;
   edgeKind: EdgeKindEstimate;
+  /** Every mark found: 50 % times [ms], its 10–90 % rise and fall [ms], overshoot [%], chirp [Hz], or why it was left out. */
+  perMark: Array<{ startMs: number; endMs: number; riseMs: number | null; fallMs: number | null; overshootPct: number; chirpHz: number | null; problem: string | null }>;
   overshootPct: { median: number | null; worst: number | null };
   /** Tone offset from the settled tone during the first `windowMs` of each mark [Hz]. */
   chirpHz: { median: number | null; worst: number | null; windowMs: number };
@@ -277,6 +279,7 @@ function composeReport(input: ShapeInputs, options: ShapeOptions, analysis: { ed
   const overs = measured.map((m) => m.overshootPct);
   const chirps = measureChirp(baseband, sampleRate, edges.marks, { windowMs: options.chirpWindowMs, resolutionMs });
   const chirpValues = chirps.map((c) => c.chirpHz);
+  const chirpByStart = new Map(chirps.map((c) => [c.startMs, c.chirpHz]));
   let worstChirp: number | null = null;
   for (const c of chirpValues) if (worstChirp === null || Math.abs(c) > Math.abs(worstChirp)) worstChirp = c;
   progress(0.5);
@@ -344,6 +347,15 @@ function composeReport(input: ShapeInputs, options: ShapeOptions, analysis: { ed
     riseMs: roundSpread(riseMs),
     fallMs: roundSpread(fallMs),
     edgeKind,
+    perMark: edges.marks.map((m) => ({
+      startMs: round(m.startMs, 2)!,
+      endMs: round(m.endMs, 2)!,
+      riseMs: m.rise ? round(m.rise.rise10to90Ms, 3) : null,
+      fallMs: m.fall ? round(m.fall.rise10to90Ms, 3) : null,
+      overshootPct: round(m.overshootPct, 2) ?? 0,
+      chirpHz: round(chirpByStart.get(m.rise?.at50Ms ?? NaN) ?? null, 2),
+      problem: m.problem,
+    })),
     overshootPct: { median: round(spreadOf(overs).median, 2), worst: overs.length ? round(Math.max(...overs), 2) : null },
     chirpHz: { median: round(spreadOf(chirpValues).median, 2), worst: round(worstChirp, 2), windowMs: options.chirpWindowMs ?? 10 },
     envelope: {
