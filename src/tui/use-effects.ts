@@ -19,6 +19,7 @@ export function predictionFromReport(report: Record<string, unknown>): Predictio
     occupiedHz: num(report.occupiedBandwidthHz),
     at40DbcHz: num(at['40']),
     necessaryHz: num(report.necessaryBandwidthHz),
+    k: num(report.k),
     designator: typeof report.designator === 'string' ? report.designator : null,
     pass: typeof mask.pass === 'boolean' ? mask.pass : null,
   };

@@ -25,8 +25,8 @@ export function exportLines(state: PlanState, width: number): number {
   return 1 + (ex.stage === 'confirm' ? 1 : 0) + caution;
 }
 
-/** Lines above the strip: heading, 7 settings, blank, 2 figures, prediction, blank, strip title. */
-const FIXED_LINES = 14;
+/** Lines above the strip: heading, 7 settings, blank, 2 figures, 2 prediction, blank, strip title. */
+const FIXED_LINES = 15;
 
 /** How the timeline strip is laid out for a plan in a screen of the given size (pure). */
 export function stripLayout(plan: KeyingPlan | null, zoom: 'detail' | 'whole', width: number, height: number, reserved = 1): StripLayout {
@@ -39,23 +39,23 @@ export function stripLayout(plan: KeyingPlan | null, zoom: 'detail' | 'whole', w
 
 const ms = (x: number): string => (x >= 100 ? x.toFixed(0) : x.toFixed(1));
 
-function predictionText(p: Prediction): { symbol: string; text: string; tone: 'good' | 'bad' | 'warn' | 'plain' } {
+function predictionText(p: Prediction): { symbol: string; text: string; second: string; tone: 'good' | 'bad' | 'warn' | 'plain' } {
   switch (p.state) {
     case 'idle':
     case 'busy':
-      return { symbol: SYMBOLS.busy, text: 'predicting the bandwidth…', tone: 'plain' };
+      return { symbol: SYMBOLS.busy, text: 'predicting the bandwidth…', second: '', tone: 'plain' };
     case 'unavailable':
-      return { symbol: '', text: 'Predicted bandwidth: not available yet (shape analysis not in this build)', tone: 'plain' };
+      return { symbol: '', text: 'Predicted bandwidth: not available yet (shape analysis not in this build)', second: '', tone: 'plain' };
     case 'error':
-      return { symbol: SYMBOLS.warn, text: `predicted bandwidth: ${p.message}`, tone: 'warn' };
+      return { symbol: SYMBOLS.warn, text: `predicted bandwidth: ${p.message}`, second: '', tone: 'warn' };
     case 'ready': {
       const parts = [
         p.occupiedHz !== null ? `occupied (99 %) ${formatHz(p.occupiedHz)}` : null,
         p.at40DbcHz !== null ? `at −40 dBc ${formatHz(p.at40DbcHz)}` : null,
-        p.necessaryHz !== null ? `necessary ${formatHz(p.necessaryHz)}${p.designator ? ` (${p.designator})` : ''}` : null,
       ].filter(Boolean);
       const verdict = p.pass === null ? '' : p.pass ? ` · ${SYMBOLS.pass} within the mask` : ` · ${SYMBOLS.fail} over the mask`;
-      return { symbol: '', text: `Predicted: ${parts.join(' · ')}${verdict}`, tone: p.pass === false ? 'bad' : 'plain' };
+      const second = p.necessaryHz !== null ? `Necessary bandwidth (ITU-R SM.1138${p.k !== null ? `, K = ${p.k}` : ''}): ${formatHz(p.necessaryHz)}${p.designator ? `, ${p.designator}` : ''}` : '';
+      return { symbol: '', text: `Predicted: ${parts.join(' · ')}${verdict}`, second, tone: p.pass === false ? 'bad' : 'plain' };
     }
   }
 }
@@ -104,10 +104,10 @@ export function PlanScreen(props: { state: PlanState; planned: { plan: KeyingPla
       {plan ? (
         <Box flexDirection="column">
           <Text wrap="truncate">
-            {` Duration ${(plan.totalMs / 1000).toFixed(2)} s · unit ${ms(plan.unitMs)} ms · ${plan.characterCount} characters · ${plan.marks.length} marks · dit ${ms(plan.ditMs)} ms · dah ${ms(plan.dahMs)} ms`}
+            {` Duration ${(plan.totalMs / 1000).toFixed(2)} s · unit ${ms(plan.unitMs)} ms · ${plan.characterCount} characters · ${plan.marks.length} marks${plan.farnsworthWpm ? ` · Farnsworth ${plan.farnsworthWpm} wpm overall` : ''}`}
           </Text>
           <Text wrap="truncate">
-            {` Gaps: element ${ms(plan.gapsMs.element)} ms · letter ${ms(plan.gapsMs.letter)} ms · word ${ms(plan.gapsMs.word)} ms${plan.farnsworthWpm ? ` (Farnsworth ${plan.farnsworthWpm} wpm overall)` : ''}`}
+            {` dit ${ms(plan.ditMs)} ms · dah ${ms(plan.dahMs)} ms · gaps ${ms(plan.gapsMs.element)} / ${ms(plan.gapsMs.letter)} / ${ms(plan.gapsMs.word)} ms (element / letter / word)`}
           </Text>
         </Box>
       ) : (
@@ -116,6 +116,7 @@ export function PlanScreen(props: { state: PlanState; planned: { plan: KeyingPla
       <Box paddingLeft={1}>
         <StatusLine tone={pred.tone} symbol={pred.symbol} text={pred.text} theme={theme} />
       </Box>
+      <Text wrap="truncate">{` ${pred.second}`}</Text>
       <Text> </Text>
       <Text bold wrap="truncate">
         {` Timeline ${(state.scrollMs / 1000).toFixed(1)}–${(shownEnd / 1000).toFixed(1)} s of ${((plan?.totalMs ?? 0) / 1000).toFixed(1)} s`}
@@ -129,6 +130,35 @@ export function PlanScreen(props: { state: PlanState; planned: { plan: KeyingPla
         </Box>
       ))}
       <ExportLine state={state} width={width} theme={theme} />
+      {plan ? <CharacterTable plan={plan} width={width} rows={height - FIXED_LINES - 3 * strips.length - exportLines(state, width) - 2} /> : null}
+    </Box>
+  );
+}
+
+/** On tall screens: each character with its pattern and start time, in columns. */
+function CharacterTable({ plan, width, rows }: { plan: KeyingPlan; width: number; rows: number }) {
+  if (rows < 2) return null;
+  const cellWidth = 24;
+  const columns = Math.max(1, Math.floor((width - 1) / cellWidth));
+  const shown = plan.characters.slice(0, rows * columns);
+  const lines: string[] = [];
+  const used = Math.min(rows, Math.ceil(shown.length / columns));
+  for (let r = 0; r < used; r++) {
+    let line = '';
+    for (let c = 0; c < columns; c++) {
+      const ch = shown[c * used + r]; // down each column, then across
+      if (!ch) continue;
+      line += `${ch.text.padEnd(4)} ${ch.pattern.padEnd(8)} ${(ch.startMs / 1000).toFixed(2).padStart(6)} s`.padEnd(cellWidth);
+    }
+    lines.push(line);
+  }
+  return (
+    <Box flexDirection="column">
+      <Text> </Text>
+      <Text bold>{` Characters (pattern, start)${plan.characters.length > shown.length ? ` — first ${shown.length} of ${plan.characters.length}` : ''}`}</Text>
+      {lines.map((l, i) => (
+        <Text key={i} wrap="truncate">{` ${l}`}</Text>
+      ))}
     </Box>
   );
 }

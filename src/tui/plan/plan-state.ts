@@ -8,7 +8,7 @@ import { applyTyped, DEFAULT_SETTINGS, fieldText, PLAN_FIELDS, stepField, type P
 export type Prediction =
   | { state: 'idle' | 'busy' | 'unavailable' }
   | { state: 'error'; message: string }
-  | { state: 'ready'; occupiedHz: number | null; at40DbcHz: number | null; necessaryHz: number | null; designator: string | null; pass: boolean | null };
+  | { state: 'ready'; occupiedHz: number | null; at40DbcHz: number | null; necessaryHz: number | null; k: number | null; designator: string | null; pass: boolean | null };
 
 export interface Exporter {
   format: ExportFormat;

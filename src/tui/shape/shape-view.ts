@@ -49,7 +49,7 @@ export function shapeSummary(report: Record<string, unknown>): { lines: string[]
     lines.push(`Clicks: ${clicks.map((c) => `±${formatHz(num(c.offsetHz) ?? 0)} ${f(worstSide(c), 0)} dBc`).join(' · ')}`);
   }
   const nc = obj(report.noiseCorrection);
-  if (nc.applied === true && num(nc.correctionPct) !== null) lines.push(`Noise floor removed before the 99 % band: ${f(nc.correctionPct)} % narrower than uncorrected`);
+  if (nc.applied === true && num(nc.uncorrectedHz) !== null) lines.push(`Noise floor removed before the 99 % band (without that it would read ${hz(nc.uncorrectedHz)})`);
   const pass = typeof mask.pass === 'boolean' ? mask.pass : null;
   const violations = Array.isArray(mask.violations) ? (mask.violations as Record<string, unknown>[]) : [];
   let worst = '';
@@ -73,10 +73,12 @@ export function shapeSummary(report: Record<string, unknown>): { lines: string[]
 export function spectrumLines(report: Record<string, unknown>, width: number, rows: number): { title: string; lines: string[] } | null {
   const s = spectrumOf(report);
   if (!s) return null;
-  const occ = num(report.occupiedBandwidthHz) ?? 500;
+  // Wide enough to show the skirts down to −40…−60 dBc, where key clicks live.
+  const at = obj(report.bandwidthAtDbcHz);
+  const widest = Math.max(1.5 * (num(report.occupiedBandwidthHz) ?? 0), 0.75 * (num(at['40']) ?? 0), 0.6 * (num(at['60']) ?? 0), 500);
   let maxOffset = 0;
   for (let i = 0; i < s.offsetHz.length; i++) maxOffset = Math.max(maxOffset, Math.abs(s.offsetHz[i]!));
-  const span = Math.min(maxOffset || 2000, Math.max(250, Math.ceil((occ * 1.5) / 250) * 250));
+  const span = Math.min(maxOffset || 2000, Math.ceil(widest / 250) * 250);
   return {
     title: `Spectrum in dBc, ±${formatHz(span)}${s.note ? ` (${s.note})` : ''}; ═ necessary bandwidth, ┼ carrier`,
     lines: spectrumPlot(s.offsetHz, s.dbc, { width: Math.max(20, width - 6), rows, spanHz: span, floorDb: -80, necessaryHz: num(report.necessaryBandwidthHz) }),

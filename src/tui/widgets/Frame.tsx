@@ -28,7 +28,7 @@ export function Footer({ hint, width, theme }: { hint: string; width: number; th
   return (
     <Box width={width}>
       <Text color={colorFor(theme, 'dim')} wrap="truncate">
-        {` ${hint} · ? help · q quit`}
+        {` ${hint}${width >= hint.length + 22 ? ' · ? help · q quit' : width >= hint.length + 11 ? ' · ? help' : ''}`}
       </Text>
     </Box>
   );

@@ -105,6 +105,17 @@ export function spectrumPlot(
     const c = Math.min(width - 1, Math.max(0, Math.floor(((f + spanHz) / (2 * spanHz)) * width)));
     colTop[c] = Math.max(colTop[c]!, dbc[i]!);
   }
+  // Columns narrower than the bins get the nearest filled column's level, so the plot has no holes.
+  const filled = colTop.map((v, c) => {
+    if (v > -Infinity) return v;
+    for (let d = 1; d < width; d++) {
+      const a = colTop[c - d];
+      const b = colTop[c + d];
+      if ((a ?? -Infinity) > -Infinity || (b ?? -Infinity) > -Infinity) return Math.max(a ?? -Infinity, b ?? -Infinity);
+    }
+    return v;
+  });
+  colTop.splice(0, width, ...filled);
   const labelW = 5;
   const lines: string[] = [];
   for (let r = 0; r < rows; r++) {
