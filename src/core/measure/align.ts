@@ -314,7 +314,7 @@ export function alignTimelines(observed: { marks: readonly Interval[] }, plan: P
     sumStart2 += startErrorMs * startErrorMs;
     sumLen2 += lengthErrorMs * lengthErrorMs;
     const worst = Math.max(Math.abs(startErrorMs), Math.abs(lengthErrorMs));
-    if (worstElement === null || worst > maxErrorMs) [maxErrorMs, worstElement] = [worst, j];
+    if (worstElement === null || worst > maxErrorMs + 1e-9) [maxErrorMs, worstElement] = [worst, j]; // the first of equal errors
     let status: ElementStatus = 'ok';
     if (worst > toleranceMs) {
       status = Math.abs(startErrorMs) >= Math.abs(lengthErrorMs) ? (startErrorMs > 0 ? 'late' : 'early') : lengthErrorMs > 0 ? 'long' : 'short';
