@@ -172,9 +172,14 @@ Caution: ${CAUTION}`,
         }
         progress.done();
         let sweep: SweepResult | null = null;
-        if (o.sweep && report.speed.wpm !== null) {
-          const edge: EdgeKind = report.mask.sweepEdge;
-          sweep = sweepRise({ wpm: report.speed.wpm, edge, k: o.k, mask, text: o.message });
+        if (o.sweep) {
+          const wpm = report.speed.wpm;
+          if (wpm !== null && wpm >= 1 && wpm <= 100) {
+            const edge: EdgeKind = report.mask.sweepEdge;
+            sweep = sweepRise({ wpm, edge, k: o.k, mask, text: o.message });
+          } else {
+            ctx.warn('no sweep: the speed could not be measured from this recording (give it with --wpm)');
+          }
         }
         if (o.plot) {
           await writeOutputFile(o.plot, shapeSvg(report), { force: o.force });

@@ -404,6 +404,29 @@ function composeReport(input: ShapeInputs, options: ShapeOptions, analysis: { ed
 }
 
 /**
+ * Warnings when the recording starts or ends with the key down: the cut is a hard edge of its own and
+ * adds clicks to the spectrum that the transmitter did not make.
+ */
+function cutEdgeWarnings(env: Float32Array, sampleRate: number): string[] {
+  const n = Math.max(1, Math.round(sampleRate * 0.005));
+  let peak = 0;
+  for (const v of env) peak = Math.max(peak, v);
+  const mean = (i0: number, i1: number): number => {
+    let s = 0;
+    for (let i = i0; i < i1; i++) s += env[i]!;
+    return s / Math.max(1, i1 - i0);
+  };
+  const out: string[] = [];
+  const why = 'the cut is a hard edge the transmitter did not make, and its clicks show in the spectrum; record some silence around the signal';
+  if (peak > 0 && env.length > 4 * n) {
+    // The first and last few ms of the envelope are affected by the filter's start-up; look just inside them.
+    if (mean(2 * n, 3 * n) > 0.3 * peak) out.push(`the recording starts with the key down: ${why}`);
+    if (mean(env.length - 3 * n, env.length - 2 * n) > 0.3 * peak) out.push(`the recording ends with the key down: ${why}`);
+  }
+  return out;
+}
+
+/**
  * Measures the keying shape of a recording of a keyed tone.
  * @param samples - Mono samples (any scale); at least 50 ms.
  * @param sampleRate - Sample rate [Hz], 8000…192000.
@@ -427,8 +450,10 @@ export function measureShape(samples: Float32Array, sampleRate: number, options:
   }
   progress(0.05);
   const baseband = complexBaseband(samples, sampleRate, { toneHz, onProgress: (f) => progress(0.05 + 0.3 * f) });
-  const edges = measureEdges(magnitude(baseband), sampleRate);
+  const env = magnitude(baseband);
+  const edges = measureEdges(env, sampleRate);
   warnings.push(...edges.warnings);
+  warnings.push(...cutEdgeWarnings(env, sampleRate));
   if (edges.marks.length === 0) warnings.push('no marks found: rise, fall and chirp are not measured');
   let unit: ShapeInputs['unit'];
   if (options.unitMs !== undefined) unit = { unitMs: checkRange('unit', options.unitMs, 1, 2000, 'ms'), source: 'given' };
