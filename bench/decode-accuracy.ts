@@ -7,6 +7,7 @@
  *
  *   npx tsx bench/decode-accuracy.ts            full table
  *   npx tsx bench/decode-accuracy.ts --quick    fewer characters per point
+ *   npx tsx bench/decode-accuracy.ts --verbose  also print every message decoded with errors
  *   npx tsx bench/decode-accuracy.ts --only "35.*-6"  rows matching a regular expression (label and SNR)
  */
 import { decodeSamples } from '../src/core/receive/index.js';
@@ -18,6 +19,7 @@ import type { Interval } from '../src/core/timeline.js';
 
 const args = process.argv.slice(2);
 const quick = args.includes('--quick');
+const verbose = args.includes('--verbose');
 const onlyIdx = args.indexOf('--only');
 const only = onlyIdx >= 0 ? args[onlyIdx + 1] : undefined;
 const CHARS_PER_POINT = quick ? 120 : 320;
@@ -94,7 +96,9 @@ function runCase(c: Case, seedBase: number): { cer: number; chars: number; secon
     const r = decodeSamples(tone.samples, SAMPLE_RATE);
     decodeMs += performance.now() - t0;
     seconds += tone.samples.length / SAMPLE_RATE;
-    errors += editDistance(r.text, plan.text);
+    const e = editDistance(r.text, plan.text);
+    if (verbose && e > 0) console.log(`  ${e} errors at ${r.wpm} wpm (${r.snrDb} dB): ${r.text}\n  ${' '.repeat(String(e).length)} sent at ${c.wpm} wpm:       ${plan.text}`);
+    errors += e;
     total += plan.text.length;
     k++;
   }

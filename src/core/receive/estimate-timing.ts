@@ -111,6 +111,14 @@ const fit = (r: number, c: number): number => Math.exp(-((Math.log(r / c)) ** 2)
  * @returns The estimate, or null when fewer than two marks stand out of the noise.
  */
 export function estimateTiming(re: Float64Array, im: Float64Array, n: number, frameMs: number): TimingEstimate | null {
+  return estimateTimingCandidates(re, im, n, frameMs, 1)[0] ?? null;
+}
+
+/**
+ * Like estimateTiming, but returns the `count` best-scoring candidate speeds (best first), for a
+ * caller that can test each against the data (e.g. with the sequence decoder's likelihood).
+ */
+export function estimateTimingCandidates(re: Float64Array, im: Float64Array, n: number, frameMs: number, count: number): TimingEstimate[] {
   const pr = new Float64Array(n + 1);
   const pi = new Float64Array(n + 1);
   for (let i = 0; i < n; i++) {
@@ -118,7 +126,7 @@ export function estimateTiming(re: Float64Array, im: Float64Array, n: number, fr
     pi[i + 1] = pi[i]! + im[i]!;
   }
   const env = new Float64Array(n);
-  let best: { score: number; u: number; w: number; runs: Run[] } | null = null;
+  const scored: { score: number; u: number; w: number; runs: Run[] }[] = [];
   for (const u of CANDIDATE_UNITS_MS) {
     const w = Math.max(1, Math.round(u / frameMs));
     const m = n - w + 1;
@@ -141,10 +149,17 @@ export function estimateTiming(re: Float64Array, im: Float64Array, n: number, fr
       score += f - 0.5 * (1 - f);
     }
     if (marks < 2) continue;
-    if (!best || score > best.score) best = { score, u, w, runs };
+    scored.push({ score, u, w, runs });
   }
-  if (!best || best.score <= 0) return null;
-  const { u, w, runs } = best;
+  return scored
+    .filter((c) => c.score > 0)
+    .sort((a, b) => b.score - a.score)
+    .slice(0, count)
+    .map((c) => refine(re, im, n, frameMs, c.u, c.w, c.runs));
+}
+
+/** Unit, gaps and levels from the runs of one candidate slicing. */
+function refine(re: Float64Array, im: Float64Array, n: number, frameMs: number, u: number, w: number, runs: Run[]): TimingEstimate {
   // Refine from the runs that fall near a class.
   let sDit = 0, nDit = 0, sDah = 0, nDah = 0, sGap = 0, nGap = 0;
   const longGaps: number[] = [];

@@ -1,7 +1,7 @@
 import { InputError, checkRange } from '../errors.js';
 import type { Interval, Timeline } from '../timeline.js';
 import { Assembler, type DecodedCharacter } from './assemble.js';
-import { estimateTiming, type TimingEstimate } from './estimate-timing.js';
+import { estimateTimingCandidates, type TimingEstimate } from './estimate-timing.js';
 import { Mixer } from './mixer.js';
 import { LevelSlicer } from './slicer.js';
 import { findTone } from './tone.js';
@@ -40,6 +40,8 @@ export const PREROLL_MS = 6000;
 const FRAME_MS = 2.5;
 /** Slots per unit at the starting speed. */
 const SLOTS_PER_UNIT = 4;
+/** Candidate speeds tried on the pre-roll. */
+const CANDIDATES = 6;
 /** Decisions are final this many units after the fact. */
 const LAG_UNITS = 40;
 /** Traceback period [slots]. */
@@ -177,7 +179,7 @@ export class StreamDecoder {
     const mixer = new Mixer(this.sampleRate, toneHz, spf);
     this.ensureFrameBuffers(samples.length);
     const nFrames = mixer.process(samples, this.frameRe, this.frameIm);
-    const est = estimateTiming(this.frameRe, this.frameIm, nFrames, this.frameMs);
+    const est = this.bestCandidate(estimateTimingCandidates(this.frameRe, this.frameIm, nFrames, this.frameMs, CANDIDATES), nFrames);
     if (!est) {
       if (!final && this.options.toneHz === undefined) {
         // A tone but no keying yet (e.g. a steady carrier or the start of the recording): keep looking.
@@ -202,29 +204,87 @@ export class StreamDecoder {
     this.preLen = 0;
   }
 
-  private start(est: TimingEstimate): void {
-    this.framesPerSlot = Math.max(1, Math.round(est.unitMs / SLOTS_PER_UNIT / this.frameMs));
-    this.slotMs = this.framesPerSlot * this.frameMs;
-    const k = this.framesPerSlot;
-    const unitSlots = est.unitMs / this.slotMs;
-    this.slicer = new LevelSlicer({
+  /**
+   * Runs the pre-roll through the slicer and sequence decoder at each candidate speed and keeps the
+   * candidate under which the data is most likely (the decoder's best path score): speed treated as
+   * one more hidden variable of the model.
+   */
+  private bestCandidate(candidates: TimingEstimate[], nFrames: number): TimingEstimate | null {
+    if (candidates.length <= 1) return candidates[0] ?? null;
+    // A finer slot grid lets the search fit noise better, so the likelihood favours fast
+    // candidates: only speeds near the best-fitting one compete.
+    const first = candidates[0]!;
+    candidates = candidates.filter((c) => c === first || (c.unitMs >= 0.65 * first.unitMs && c.unitMs <= 1.8 * first.unitMs && c.dahMs / c.ditMs >= 2 && c.dahMs / c.ditMs <= 4.5));
+    let best: TimingEstimate | null = null;
+    let bestScore = -Infinity;
+    // Same levels for every candidate, so that the scores differ by timing alone.
+    const { signalPow, noisePow } = candidates[0]!;
+    for (const candidate of candidates) {
+      const est = { ...candidate, signalPow, noisePow };
+      const chain = this.makeChain(est);
+      const k = chain.framesPerSlot;
+      const slots = Math.floor(nFrames / k);
+      for (let s = 0; s < slots; s++) {
+        let zr = 0;
+        let zi = 0;
+        for (let f = s * k; f < (s + 1) * k; f++) {
+          zr += this.frameRe[f]!;
+          zi += this.frameIm[f]!;
+        }
+        chain.slicer.step(zr, zi);
+        const A2 = chain.slicer.signalPow;
+        const N = chain.slicer.noisePow;
+        const A = Math.sqrt(A2);
+        chain.decoder.step((A / N) * zr, (A / N) * zi, A2 / N);
+      }
+      const score = chain.decoder.bestScore();
+      if (score > bestScore) {
+        bestScore = score;
+        best = est;
+      }
+    }
+    return best;
+  }
+
+  /** Slot length, slicer, duration model and decoder for a timing estimate. */
+  private makeChain(est: TimingEstimate): { framesPerSlot: number; slotMs: number; slicer: LevelSlicer; decoder: SequenceDecoder; model: DurationModel; unitSlots: number } {
+    const framesPerSlot = Math.max(1, Math.round(est.unitMs / SLOTS_PER_UNIT / this.frameMs));
+    const slotMs = framesPerSlot * this.frameMs;
+    const k = framesPerSlot;
+    const unitSlots = est.unitMs / slotMs;
+    const slicer = new LevelSlicer({
       windowSlots: Math.max(1, Math.round(unitSlots)),
-      slotMs: this.slotMs,
+      slotMs,
       signalPow: est.signalPow * k * k, // coherent sum of k frames
       noisePow: est.noisePow * k, // noise adds in power
     });
-    this.model = {
-      dit: est.ditMs / this.slotMs,
-      dah: est.dahMs / this.slotMs,
-      elementGap: est.elementGapMs / this.slotMs,
-      letterGap: est.letterGapMs / this.slotMs,
-      wordGap: est.wordGapMs / this.slotMs,
+    // Start from the standard ratios (ITU-R M.1677-1 §2) around the estimated unit, nudged by
+    // what the pre-roll showed; stretched letter gaps (Farnsworth, QEX 1990) are taken as they are.
+    const u = unitSlots;
+    const farnsworth = est.letterGapMs > 4.5 * est.unitMs;
+    const letterGap = farnsworth ? est.letterGapMs / slotMs : 3 * u;
+    const model: DurationModel = {
+      dit: clamp(est.ditMs / slotMs, 0.8 * u, 1.25 * u),
+      dah: clamp(est.dahMs / slotMs, 2.6 * u, 3.6 * u),
+      elementGap: clamp(est.elementGapMs / slotMs, 0.8 * u, 1.25 * u),
+      letterGap,
+      wordGap: farnsworth ? Math.max((7 / 3) * letterGap, est.wordGapMs / slotMs) : 7 * u,
     };
-    this.decoder = new SequenceDecoder(TRIE, this.model, 2048);
+    constrainModel(model);
+    return { framesPerSlot, slotMs, slicer, decoder: new SequenceDecoder(TRIE, model, 2048), model, unitSlots };
+  }
+
+  private start(est: TimingEstimate): void {
+    const chain = this.makeChain(est);
+    this.framesPerSlot = chain.framesPerSlot;
+    this.slotMs = chain.slotMs;
+    this.slicer = chain.slicer;
+    this.model = chain.model;
+    this.decoder = chain.decoder;
+    const unitSlots = chain.unitSlots;
     this.lagSlots = Math.min(1024, Math.max(64, Math.round(LAG_UNITS * unitSlots), Math.round(2.5 * this.model.wordGap)));
     this.zRe = new Float64Array(this.decoder.historySlots);
     this.zIm = new Float64Array(this.decoder.historySlots);
-    if (this.options.keepEnvelope) this.envDecim = 1;
   }
 
   // ---- streaming chain ----------------------------------------------------------------------
@@ -394,15 +454,8 @@ export class StreamDecoder {
   }
 
   private trackSpeed(): void {
-    const m = this.model!;
-    const unit = (m.dit + m.elementGap + m.dah / 3) / 3;
-    m.dit = clamp(m.dit, 0.5 * unit, 1.8 * unit);
-    m.dah = clamp(m.dah, Math.max(2.2 * unit, 1.8 * m.dit), 4.5 * unit);
-    m.elementGap = clamp(m.elementGap, 0.5 * unit, 1.8 * unit);
-    m.letterGap = Math.max(m.letterGap, 2.2 * unit, 1.8 * m.elementGap);
-    m.wordGap = Math.max(m.wordGap, 1.6 * m.letterGap, 5 * unit);
-    for (const key of Object.keys(m) as (keyof DurationModel)[]) m[key] = Math.max(1, m[key]);
-    this.decoder!.setModel(m);
+    constrainModel(this.model!);
+    this.decoder!.setModel(this.model!);
   }
 
   // ---- result -------------------------------------------------------------------------------
@@ -468,6 +521,22 @@ export class StreamDecoder {
     }
     return result;
   }
+}
+
+/**
+ * Keeps a duration model plausible (in place): dash/dot ratio 1.8…4.5 around the unit, element
+ * gaps 0.5…1.8 units, letter gaps at least 2.2 units, word gaps at least 1.6 letter gaps
+ * (ITU-R M.1677-1 §2 with room for hand-sent timing; Farnsworth stretches only the long gaps).
+ */
+export function constrainModel(m: DurationModel): DurationModel {
+  const unit = (m.dit + m.elementGap + m.dah / 3) / 3;
+  m.dit = clamp(m.dit, 0.5 * unit, 1.8 * unit);
+  m.dah = clamp(m.dah, Math.max(2.2 * unit, 1.8 * m.dit), 4.5 * unit);
+  m.elementGap = clamp(m.elementGap, 0.5 * unit, 1.8 * unit);
+  m.letterGap = Math.max(m.letterGap, 2.2 * unit, 1.8 * m.elementGap);
+  m.wordGap = Math.max(m.wordGap, 1.6 * m.letterGap, 5 * unit);
+  for (const key of Object.keys(m) as (keyof DurationModel)[]) m[key] = Math.max(1, m[key]);
+  return m;
 }
 
 const round = (ms: number): number => Math.round(ms * 10) / 10;
