@@ -155,7 +155,10 @@ export function emissionDesignator(necessaryBandwidth: number): string {
   return `${bandwidthCode(necessaryBandwidth)}A1AAN`;
 }
 
-/** dB of a power ratio, with a floor so that zero power gives a finite number. */
+/**
+ * dB of a power ratio, with a floor [dB] so that zero power gives a finite number.
+ * @example powerDb(0.01) //=> -20
+ */
 export function powerDb(ratio: number, floorDb = -200): number {
   return ratio > 0 ? Math.max(floorDb, 10 * Math.log10(ratio)) : floorDb;
 }

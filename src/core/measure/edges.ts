@@ -96,12 +96,15 @@ function stdOf(env: Float32Array, i0: number, i1: number): number {
   return Math.sqrt(Math.max(0, s2 / n - m * m));
 }
 
-/** Sorted copy of a numeric list. */
+/** Sorted copy of a numeric list. @example sortedCopy([3, 1, 2]) //=> [1, 2, 3] */
 export function sortedCopy(values: readonly number[]): number[] {
   return [...values].sort((a, b) => a - b);
 }
 
-/** Median, 10th and 90th percentile of a list (nulls when empty). */
+/**
+ * Median, 10th and 90th percentile of a list (linear interpolation; nulls when empty).
+ * @example spreadOf([1, 2, 3, 4, 5]) //=> { median: 3, p10: 1.4, p90: 4.6 }
+ */
 export function spreadOf(values: readonly number[]): { median: number | null; p10: number | null; p90: number | null } {
   if (values.length === 0) return { median: null, p10: null, p90: null };
   const s = sortedCopy(values);

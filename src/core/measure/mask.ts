@@ -33,7 +33,10 @@ export const DEFAULT_MASK: SpectralMask = {
   ],
 };
 
-/** Checks a mask's points: offsets positive and increasing, levels at or below 0 dBc. */
+/**
+ * Checks a mask's points: offsets above 0 Hz and increasing, levels from −200 to 0 dBc; throws InputError naming the point.
+ * @example validateMask(DEFAULT_MASK).points.length //=> 4
+ */
 export function validateMask(mask: SpectralMask): SpectralMask {
   if (mask.points.length === 0) throw new InputError(`mask '${mask.name}' has no points`);
   mask.points.forEach((p, i) => {

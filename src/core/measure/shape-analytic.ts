@@ -117,7 +117,10 @@ export function complexBaseband(samples: Float32Array, sampleRate: number, optio
   return result;
 }
 
-/** Magnitude |re + j·im| per sample. */
+/**
+ * Magnitude |re + j·im| per sample: the keying envelope in the input's units.
+ * @example magnitude(complexBaseband(sine700, 48000, { toneHz: 700 }))[24000] //=> ≈ the sine's amplitude
+ */
 export function magnitude(bb: Baseband): Float32Array {
   const env = new Float32Array(bb.re.length);
   for (let i = 0; i < env.length; i++) env[i] = Math.hypot(bb.re[i]!, bb.im[i]!);

@@ -61,7 +61,10 @@ export function noiseDensityFromGaps(
   return { segmentLength: L, density, segments };
 }
 
-/** Noise density at `hz` (linear interpolation between bins). */
+/**
+ * Noise density at `hz` [mean-square units per Hz] (linear interpolation between bins).
+ * @example densityAt(noiseDensityFromGaps(noise, 48000, [[0, noise.length]]), 48000, 700) //=> ≈ 2σ²/48000
+ */
 export function densityAt(noise: NoiseDensity, sampleRate: number, hz: number): number {
   const x = (hz * noise.segmentLength) / sampleRate;
   const i = Math.floor(x);

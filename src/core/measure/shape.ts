@@ -199,7 +199,11 @@ function spectralFigures(
 /** Shortest element or gap taken as keying when estimating the unit [ms]. */
 export const MIN_ELEMENT_MS = 8;
 
-/** Unit length from the marks and gaps: the median short mark and short gap (element gap = 1 unit). */
+/**
+ * Unit length [ms] from the marks and gaps: the median short mark and short gap (element gap = 1 unit),
+ * ignoring runs under 8 ms. Null without marks.
+ * @example estimateUnitMs([{ startMs: 0, endMs: 60 }, { startMs: 120, endMs: 300 }]) //=> 60
+ */
 export function estimateUnitMs(marks: ReadonlyArray<{ startMs: number; endMs: number }>): number | null {
   if (marks.length === 0) return null;
   // Runs shorter than 8 ms (faster than 100 wpm allows, even hand-sent) are noise, not elements.

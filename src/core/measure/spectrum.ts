@@ -26,7 +26,11 @@ export interface PowerSpectrum {
   segments: number;
 }
 
-/** Hann window, periodic form: w[n] = sin²(π·n/L). */
+/**
+ * Hann window, periodic form: w[n] = sin²(π·n/L).
+ * @param length - Window length [samples], ≥ 1.
+ * @example hannWindow(4) //=> [0, 0.5, 1, 0.5]
+ */
 export function hannWindow(length: number): Float64Array {
   const w = new Float64Array(length);
   for (let n = 0; n < length; n++) {
@@ -36,7 +40,10 @@ export function hannWindow(length: number): Float64Array {
   return w;
 }
 
-/** Power of two nearest (on a log scale) to `x`, within [minLength, maxLength]. */
+/**
+ * Power of two nearest (on a log scale) to `x`, within [minLength, maxLength].
+ * @example nearestPowerOfTwo(7200) //=> 8192
+ */
 export function nearestPowerOfTwo(x: number, minLength = 64, maxLength = 1 << 20): number {
   const p = 2 ** Math.round(Math.log2(Math.max(1, x)));
   return Math.min(maxLength, Math.max(minLength, p));
@@ -131,7 +138,10 @@ export function findTonePeak(spectrum: PowerSpectrum, minHz: number, maxHz: numb
   return (best + delta) * binHz;
 }
 
-/** Total power of a spectrum (sum of bin powers). */
+/**
+ * Total power of a spectrum (sum of bin powers; the mean square of the signal).
+ * @example totalPower(welchSpectrum(sineOfAmplitude1, 8000, { segmentLength: 1024 })) //=> ≈ 0.5
+ */
 export function totalPower(spectrum: PowerSpectrum): number {
   let s = 0;
   for (const p of spectrum.binPower) s += p;
