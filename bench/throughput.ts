@@ -23,7 +23,7 @@ import { fileURLToPath } from 'node:url';
 import { addNoise, noiseSigmaForSnr, seededRandom } from '../src/core/signal/noise.js';
 import { synthesizeTone } from '../src/core/signal/synth.js';
 import { planKeying } from '../src/core/timing/plan.js';
-import { loadReceiver } from '../src/cli/analyze-recording.js';
+import { StreamDecoder } from '../src/core/receive/index.js';
 import { openAudio } from '../src/io/audio-source.js';
 
 const SNR_DB = 5;
@@ -39,15 +39,10 @@ if (process.argv[2] === '--child') {
 }
 
 async function child(mode: 'read' | 'decode', path: string): Promise<void> {
-  const receiver = mode === 'decode' ? await loadReceiver() : null;
-  if (mode === 'decode' && !receiver) {
-    process.stdout.write(JSON.stringify({ error: 'receiver not built yet' }));
-    return;
-  }
   const t0 = performance.now();
   const cpu0 = process.cpuUsage();
   const audio = await openAudio(path, { streamAboveBytes: 0 });
-  const decoder = receiver ? new receiver.StreamDecoder(audio.sampleRate) : null;
+  const decoder = mode === 'decode' ? new StreamDecoder(audio.sampleRate) : null;
   let frames = 0;
   let checksum = 0;
   for await (const [ch] of audio.chunks()) {
@@ -123,7 +118,7 @@ function generate(path: string, sampleRate: number, seconds: number, seed: numbe
   return characters;
 }
 
-interface ChildResult { audioS: number; wallS: number; cpuS: number; maxRssMB: number; characters: number | null; wpm: number | null; snrDb: number | null; error?: string }
+interface ChildResult { audioS: number; wallS: number; cpuS: number; maxRssMB: number; characters: number | null; wpm: number | null; snrDb: number | null }
 
 function runChild(mode: 'read' | 'decode', path: string): ChildResult {
   const self = fileURLToPath(import.meta.url);
@@ -154,8 +149,6 @@ const say = (s: string): void => {
 const load = (): string => loadavg().map((x) => x.toFixed(2)).join(' ');
 say(`keyform throughput benchmark — node ${process.version}, ${availableParallelism()} CPUs, load average ${load()} at start, files in ${dir}`);
 say(`audio: ${minutes} min of 20–25 WPM traffic, 700 Hz, 5 ms raised-cosine edges, +${SNR_DB} dB SNR (key-down carrier / noise in 2500 Hz), 16-bit mono WAV, seed ${SEED}`);
-const receiverBuilt = (await loadReceiver()) !== null;
-if (!receiverBuilt) say('note: the receiver (src/core/receive) is not built yet: only the read floor is measured');
 
 const rows: string[][] = [];
 for (const sampleRate of [48_000, 8000]) {
@@ -167,9 +160,9 @@ for (const sampleRate of [48_000, 8000]) {
     process.stderr.write(`generated ${path} (${chars} characters, ${(statSync(path).size / 1e6).toFixed(0)} MB) in ${((performance.now() - t0) / 1000).toFixed(1)} s\n`);
   }
   const floor = runChild('read', path);
-  const decode = receiverBuilt ? runChild('decode', path) : null;
-  const rtf = (r: ChildResult | null): string => (r && !r.error ? Math.round(r.audioS / r.wallS).toLocaleString('en-US') : '–');
-  const rtfCpu = (r: ChildResult | null): string => (r && !r.error ? Math.round(r.audioS / r.cpuS).toLocaleString('en-US') : '–');
+  const decode = runChild('decode', path);
+  const rtf = (r: ChildResult): string => Math.round(r.audioS / r.wallS).toLocaleString('en-US');
+  const rtfCpu = (r: ChildResult): string => Math.round(r.audioS / r.cpuS).toLocaleString('en-US');
   const sent = Number(readFileSync(`${path}.chars`, 'utf8'));
   rows.push([
     `${sampleRate / 1000} kHz`,
@@ -177,12 +170,12 @@ for (const sampleRate of [48_000, 8000]) {
     `${(statSync(path).size / 1e6).toFixed(0)} MB`,
     `${floor.wallS.toFixed(2)} s`,
     `${rtf(floor)}×`,
-    decode ? `${decode.wallS.toFixed(2)} s` : '–',
-    decode ? `${rtf(decode)}× (${rtfCpu(decode)}×)` : '–',
-    decode ? `${(decode.wallS / floor.wallS).toFixed(1)}×` : '–',
-    `${(decode ?? floor).maxRssMB.toFixed(0)} MB`,
-    decode?.wpm != null ? `${decode.wpm.toFixed(1)} / ${decode.snrDb?.toFixed(1) ?? '–'} dB` : '–',
-    `${sent} / ${decode?.characters ?? '–'}`,
+    `${decode.wallS.toFixed(2)} s`,
+    `${rtf(decode)}× (${rtfCpu(decode)}×)`,
+    `${(decode.wallS / floor.wallS).toFixed(1)}×`,
+    `${decode.maxRssMB.toFixed(0)} MB`,
+    decode.wpm !== null ? `${decode.wpm.toFixed(1)} / ${decode.snrDb?.toFixed(1) ?? '–'} dB` : '–',
+    `${sent} / ${decode.characters ?? '–'}`,
   ]);
 }
 function printTable(head: string[], rows: string[][]): void {

@@ -4,7 +4,9 @@
  * threads) and by the throughput benchmark. Never throws for a bad file: the error goes in the row.
  */
 import { InputError } from '../core/errors.js';
-import type { Interval } from '../core/timeline.js';
+import { measureShape } from '../core/measure/shape.js';
+import { measureTiming } from '../core/measure/timing.js';
+import { pickChannel, StreamDecoder, type DecodeResult } from '../core/receive/index.js';
 import { concatChunks, openAudio, type AudioSource, type OpenAudioOptions } from '../io/audio-source.js';
 
 /** One line of a batch report. Numbers are null where they could not be measured. */
@@ -55,58 +57,6 @@ export interface AnalyzeOptions extends Pick<OpenAudioOptions, 'raw' | 'rate' | 
   onProgress?: (fraction: number) => void;
 }
 
-// The receiver, timing and shape modules, as far as this file relies on them (their contracts).
-interface DecodeResultLike {
-  text: string;
-  wpm: number | null;
-  unitMs: number | null;
-  marks: Interval[];
-  toneHz: number | null;
-  snrDb: number | null;
-  warnings: string[];
-  durationMs: number;
-}
-interface ReceiverModule {
-  StreamDecoder: new (
-    sampleRate: number,
-    options?: { toneHz?: number; onProgress?: (f: number) => void; onText?: (text: string) => void; expectedSamples?: number },
-  ) => {
-    push(chunk: Float32Array): void;
-    finish(): DecodeResultLike;
-  };
-  pickChannel(channels: Float32Array[], sampleRate: number): { index: number; reason: string };
-}
-interface ShapeModule {
-  measureShape(samples: Float32Array, sampleRate: number, options?: { toneHz?: number; unitMs?: number; findShortestRise?: boolean }): {
-    riseMs?: { median: number | null } | null;
-    occupiedBandwidthHz?: number | null;
-    mask?: { pass: boolean } | null;
-    warnings?: string[];
-  };
-}
-interface TimingModule {
-  measureTiming(timeline: { marks: readonly Interval[] }): { jitterPct: number | null; warnings: string[] };
-}
-
-const loaded = new Map<string, Promise<unknown>>();
-/** Loads a sibling core module if it exists in this build (the receiver and shape analysis land separately). */
-async function optional<T>(specifier: string): Promise<T | null> {
-  if (!loaded.has(specifier)) {
-    loaded.set(
-      specifier,
-      import(specifier).catch((err: NodeJS.ErrnoException) => {
-        if (err?.code === 'ERR_MODULE_NOT_FOUND' || /Cannot find module|Failed to load url|does not provide/.test(String(err?.message))) return null;
-        throw err;
-      }),
-    );
-  }
-  return (await loaded.get(specifier)) as T | null;
-}
-
-export const loadReceiver = (): Promise<ReceiverModule | null> => optional<ReceiverModule>('../core/receive/index.js');
-const loadShape = (): Promise<ShapeModule | null> => optional<ShapeModule>('../core/measure/shape.js');
-const loadTiming = (): Promise<TimingModule | null> => optional<TimingModule>('../core/measure/timing.js');
-
 /** Seconds of audio buffered to choose the channel of a multichannel recording. */
 const PICK_SECONDS = 10;
 
@@ -144,7 +94,7 @@ export interface StreamDecodeOptions {
 }
 
 export interface StreamDecode {
-  result: DecodeResultLike;
+  result: DecodeResult;
   /** The channel decoded (0-based). */
   channel: number;
   /** Which channel was chosen and why (multichannel input without `channel`), else null. */
@@ -160,8 +110,6 @@ export interface StreamDecode {
  * @example const { result } = await decodeAudioSource(await openAudio('-', { stdin, raw: 's16le', rate: 8000 }), { onText: write });
  */
 export async function decodeAudioSource(audio: AudioSource, options: StreamDecodeOptions = {}): Promise<StreamDecode> {
-  const receiver = await loadReceiver();
-  if (!receiver) throw new InputError('the receiver is not part of this build');
   const { sampleRate, channelCount } = audio;
   if (options.channel !== undefined && (!Number.isInteger(options.channel) || options.channel < 0 || options.channel >= channelCount)) {
     throw new InputError(`${audio.name}: channel ${options.channel} does not exist (the input has ${channelCount}, numbered from 0)`);
@@ -174,7 +122,7 @@ export async function decodeAudioSource(audio: AudioSource, options: StreamDecod
   let channelNote: string | null = null;
   const held: Float32Array[][] = [];
   let heldFrames = 0;
-  const decoder = new receiver.StreamDecoder(sampleRate, {
+  const decoder = new StreamDecoder(sampleRate, {
     toneHz: options.toneHz,
     onText: options.onText,
     onProgress: options.onProgress,
@@ -193,7 +141,7 @@ export async function decodeAudioSource(audio: AudioSource, options: StreamDecod
   };
   const choose = (): void => {
     const joined = concatChunks(held, channelCount);
-    const pick = receiver.pickChannel(joined, sampleRate);
+    const pick = pickChannel(joined, sampleRate);
     channel = pick.index;
     channelNote = `${audio.name}: using channel ${channel} of ${channelCount} (${pick.reason})`;
     held.length = 0;
@@ -276,32 +224,25 @@ async function analyzeInto(row: BatchRow, path: string, options: AnalyzeOptions)
   row.warnings.push(...result.warnings);
 
   if (result.marks.length >= 2) {
-    const timing = await loadTiming();
-    if (timing) {
-      try {
-        const report = timing.measureTiming(result);
-        row.jitterPct = round(report.jitterPct, 1);
-      } catch (err) {
-        row.warnings.push(`timing: ${errorLine(err)}`);
-      }
+    try {
+      row.jitterPct = round(measureTiming(result).jitterPct, 1);
+    } catch (err) {
+      row.warnings.push(`timing: ${errorLine(err)}`);
     }
   }
   if (excerpt.length > 0 && result.marks.length > 0) {
-    const shape = await loadShape();
-    if (shape) {
-      try {
-        const report = shape.measureShape(excerpt, sampleRate, {
-          toneHz: result.toneHz ?? options.toneHz,
-          unitMs: result.unitMs ?? undefined,
-          findShortestRise: false,
-        });
-        row.riseMs = round(report.riseMs?.median, 2);
-        row.occupiedBandwidthHz = round(report.occupiedBandwidthHz, 0);
-        if (report.mask && report.mask.pass === false) row.verdict = 'mask fail';
-        row.warnings.push(...(report.warnings ?? []).map((w) => `shape: ${w}`));
-      } catch (err) {
-        row.warnings.push(`shape: ${errorLine(err)}`);
-      }
+    try {
+      const report = measureShape(excerpt, sampleRate, {
+        toneHz: result.toneHz ?? options.toneHz,
+        unitMs: result.unitMs ?? undefined,
+        findShortestRise: false,
+      });
+      row.riseMs = round(report.riseMs.median, 2);
+      row.occupiedBandwidthHz = round(report.occupiedBandwidthHz, 0);
+      if (!report.mask.pass) row.verdict = 'mask fail';
+      row.warnings.push(...report.warnings.map((w) => `shape: ${w}`));
+    } catch (err) {
+      row.warnings.push(`shape: ${errorLine(err)}`);
     }
   }
 }

@@ -90,7 +90,7 @@ export function mutatedWav(): fc.Arbitrary<Uint8Array> {
         for (let i = 0; i < frames; i++) a[i] = Math.sin(0.1 * (c + 1) * i) * 0.8;
         return a;
       });
-      let bytes = Buffer.from(encodeWav({ sampleRate, channels, encoding }));
+      let bytes: Buffer = Buffer.from(encodeWav({ sampleRate, channels, encoding }));
       for (const m of mutations) bytes = apply(Buffer.from(bytes), m);
       return new Uint8Array(bytes);
     });
@@ -119,7 +119,7 @@ export function damagedRecording(keyed: (seconds: number) => Float32Array): fc.A
       damage: fc.array(bodyDamage, { maxLength: 4 }),
     })
     .map(({ seconds, encoding, damage }) => {
-      let bytes = Buffer.from(encodeWav({ sampleRate: 8000, channels: [keyed(seconds)], encoding }));
+      let bytes: Buffer = Buffer.from(encodeWav({ sampleRate: 8000, channels: [keyed(seconds)], encoding }));
       const bps = encoding === 'f32' ? 4 : 2;
       const frames = (bytes.length - 44) / bps;
       for (const d of damage) {
@@ -140,7 +140,7 @@ export function damagedRecording(keyed: (seconds: number) => Float32Array): fc.A
           } else if (d.kind === 'noise') {
             x = (Math.imul(x, 1664525) + 1013904223) >>> 0;
             bytes.writeUInt16LE(x >>> 16, o);
-          } else if (bps === 4) bytes.writeFloatLE(d.value, o);
+          } else if (d.kind === 'nonfinite' && bps === 4) bytes.writeFloatLE(d.value, o);
         }
       }
       return new Uint8Array(bytes);

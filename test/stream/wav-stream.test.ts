@@ -183,6 +183,9 @@ describe('raw PCM', () => {
   });
 });
 
+/** A stdin that ends at once. */
+async function* noInput(): AsyncGenerator<Uint8Array> {}
+
 describe('openAudio', () => {
   it('gives the same samples on the whole-file and the streaming path', async () => {
     const path = join(dir, 'both.wav');
@@ -198,8 +201,8 @@ describe('openAudio', () => {
   });
 
   it('needs --rate for raw PCM and refuses --rate without --raw', async () => {
-    await expect(openAudio('-', { raw: 's16le', stdin: [] })).rejects.toThrow(/needs its sample rate/);
+    await expect(openAudio('-', { raw: 's16le', stdin: noInput() })).rejects.toThrow(/needs its sample rate/);
     await expect(openAudio('x.wav', { rate: 8000 })).rejects.toThrow(/give --raw/);
-    await expect(openAudio('-', { raw: 's16le', rate: 4000, stdin: [] })).rejects.toThrow(/--rate must be from 8000 to 192000/);
+    await expect(openAudio('-', { raw: 's16le', rate: 4000, stdin: noInput() })).rejects.toThrow(/--rate must be from 8000 to 192000/);
   });
 });
