@@ -72,7 +72,7 @@ export interface XdbBandwidth {
  * A side is "not found" when the spectrum is still above −x dBc at the span's end on that side.
  * @param dbc - Spectrum in dB relative to the reference, one value per offset.
  * @param xDb - Level below the reference [dB], 1…150.
- * @example xDbBandwidth(offsets, dbc, 40).widthHz //=> e.g. 280 for a 5 ms raised-cosine edge at 20 wpm
+ * @example xDbBandwidth(offsets, dbc, 40).widthHz //=> 224 for 5 ms raised-cosine edges at 20 wpm (predictShape, 8.8 Hz RBW)
  */
 export function xDbBandwidth(offsetHz: ArrayLike<number>, dbc: ArrayLike<number>, xDb: number): XdbBandwidth {
   checkRange('x', xDb, 1, 150, 'dB');

@@ -555,7 +555,7 @@ export interface SweepResult {
 /**
  * Rise time against occupied and −40 dBc bandwidth at a given speed, with the shortest rise time that
  * meets the mask (spectral figures only; no edge or chirp analysis).
- * @example sweepRise({ wpm: 20, edge: 'raised-cosine' }).shortestRiseMs //=> a few ms
+ * @example sweepRise({ wpm: 20, edge: 'raised-cosine' }).shortestRiseMs //=> 2.5 (default mask)
  */
 export function sweepRise(options: SweepOptions): SweepResult {
   checkRange('wpm', options.wpm, 1, 100, 'wpm');
