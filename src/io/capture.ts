@@ -4,10 +4,12 @@
  * one row per edge or sample. Also reads the interval CSV written by `keyform encode --format csv`
  * (`state,startMs,durationMs`), so a plan can stand in for a capture.
  */
+import { createReadStream } from 'node:fs';
+import { open } from 'node:fs/promises';
+import { parse as parseStream } from 'csv-parse';
 import { parse } from 'csv-parse/sync';
 import { InputError } from '../core/errors.js';
 import type { Interval } from '../core/timeline.js';
-import { readInputFile } from './files.js';
 
 export type CaptureTimeUnit = 's' | 'ms' | 'us';
 
@@ -43,103 +45,168 @@ export function timeUnitFromHeader(name: string): CaptureTimeUnit | null {
   return 's';
 }
 
-interface Row {
-  record: string[];
-  info: { lines: number };
-}
+/** csv-parse settings shared by the string and the streaming reader (one record per line). */
+const CSV_OPTIONS = { trim: true, relax_column_count: true, bom: true } as const;
 
-function parseRows(text: string, name: string): Row[] {
-  try {
-    return parse(text, { skip_empty_lines: true, trim: true, comment: '#', relax_column_count: true, info: true, bom: true }) as unknown as Row[];
-  } catch (err) {
-    throw new InputError(`${name}: not a readable CSV file (${(err as Error).message})`);
+/**
+ * Turns capture rows into key-down intervals one row at a time, so a file can be streamed with
+ * memory that grows only with the marks. Blank lines and lines starting with `#` are skipped.
+ * Rows are numbered by line (captures have no quoted line breaks).
+ */
+class CaptureRows {
+  private readonly name: string;
+  private mode: 'header' | 'edges' | 'intervals' = 'header';
+  private timeCol = 0;
+  private stateCol = 1;
+  private timeUnit: CaptureTimeUnit = 'ms';
+  private stateName = 'state';
+  private readonly marks: Interval[] = [];
+  private readonly warnings: string[] = [];
+  private rows = 0;
+  private prev = -Infinity;
+  private down: boolean | null = null;
+  private downSince = 0;
+  private firstDownAtStart = false;
+
+  constructor(private readonly options: CaptureReadOptions) {
+    this.name = options.name ?? 'capture';
   }
-}
 
-function readIntervalCsv(rows: Row[], name: string): Capture {
-  const marks: Interval[] = [];
-  let prevEnd = -Infinity;
-  for (const { record, info } of rows.slice(1)) {
+  /** Takes the record on 1-based line `line`. */
+  push(record: string[], line: number): void {
+    if (record.length === 0 || (record.length === 1 && record[0] === '') || record[0]!.startsWith('#')) return;
+    if (this.mode === 'header') this.header(record, line);
+    else if (this.mode === 'intervals') this.interval(record, `${this.name}: row ${line}`);
+    else this.edge(record, `${this.name}: row ${line}`);
+  }
+
+  private header(record: string[], line: number): void {
+    const header = record.map((h) => h.trim());
+    if (header.join(',').toLowerCase() === 'state,startms,durationms') {
+      this.mode = 'intervals';
+      return;
+    }
+    this.timeCol = header.findIndex((h) => timeUnitFromHeader(h) !== null);
+    if (this.timeCol < 0) {
+      throw new InputError(`${this.name}: row ${line}: the first row must name the columns, with the time unit (e.g. time_s,state or time_ms,state)`);
+    }
+    this.timeUnit = timeUnitFromHeader(header[this.timeCol]!)!;
+    const column = this.options.column;
+    if (column !== undefined) {
+      this.stateCol = header.findIndex((h) => h.toLowerCase() === column.toLowerCase());
+      if (this.stateCol < 0) throw new InputError(`${this.name}: no column '${column}' (columns: ${header.join(', ')})`);
+    } else {
+      this.stateCol = header.findIndex((h) => /^(state|key|level|value)$/i.test(h));
+      if (this.stateCol < 0) this.stateCol = header.findIndex((_, i) => i !== this.timeCol);
+      if (this.stateCol < 0) throw new InputError(`${this.name}: needs a state column next to the time column`);
+    }
+    this.stateName = header[this.stateCol]!;
+    this.mode = 'edges';
+  }
+
+  private edge(record: string[], where: string): void {
+    this.rows++;
+    const timeText = record[this.timeCol] ?? '';
+    const t = Number(timeText) * MS_PER[this.timeUnit];
+    if (timeText === '' || !Number.isFinite(t)) throw new InputError(`${where}: time '${timeText}' is not a number`);
+    if (t < this.prev) throw new InputError(`${where}: time ${timeText} goes back (the previous row is later); rows must be in time order`);
+    this.prev = t;
+    const raw = (record[this.stateCol] ?? '').toLowerCase();
+    let isDown: boolean;
+    if (raw === 'down') isDown = true;
+    else if (raw === 'up') isDown = false;
+    else if (DOWN_WORDS.has(raw)) isDown = !this.options.activeLow;
+    else if (UP_WORDS.has(raw)) isDown = Boolean(this.options.activeLow);
+    else throw new InputError(`${where}: unknown state '${record[this.stateCol] ?? ''}' (expected 1/0, high/low, on/off or down/up)`);
+    if (this.down === null && isDown) this.firstDownAtStart = true;
+    if (isDown && this.down !== true) this.downSince = t;
+    if (!isDown && this.down === true && t > this.downSince) this.marks.push([this.downSince, t]);
+    this.down = isDown;
+  }
+
+  private interval(record: string[], where: string): void {
+    this.rows++;
     const [state, startText, durText] = record;
-    const where = `${name}: row ${info.lines}`;
     const start = Number(startText);
     const dur = Number(durText);
-    if (!Number.isFinite(start) || !Number.isFinite(dur) || startText === '' || durText === '') {
+    if (!Number.isFinite(start) || !Number.isFinite(dur) || !startText || !durText) {
       throw new InputError(`${where}: startMs and durationMs must be numbers (got '${startText ?? ''}', '${durText ?? ''}')`);
     }
     if (state !== 'down' && state !== 'up' && state !== 'ptt') throw new InputError(`${where}: unknown state '${state ?? ''}' (expected down, up or ptt)`);
-    if (state !== 'down') continue;
+    if (state !== 'down') return;
     if (dur <= 0) throw new InputError(`${where}: a key-down must last longer than 0 ms (got ${dur})`);
-    if (start < prevEnd) throw new InputError(`${where}: starts at ${start} ms, before the previous key-down ends (${prevEnd} ms)`);
-    marks.push([start, start + dur]);
-    prevEnd = start + dur;
+    if (start < this.prev) throw new InputError(`${where}: starts at ${start} ms, before the previous key-down ends (${this.prev} ms)`);
+    this.marks.push([start, start + dur]);
+    this.prev = start + dur;
   }
-  if (marks.length === 0) throw new InputError(`${name}: no key-down rows`);
-  return { marks, timeUnit: 'ms', rows: rows.length - 1, stateColumn: 'state', warnings: [] };
+
+  finish(): Capture {
+    if (this.mode === 'header') throw new InputError(`${this.name}: empty capture`);
+    if (this.mode === 'intervals') {
+      if (this.marks.length === 0) throw new InputError(`${this.name}: no key-down rows`);
+      return { marks: this.marks, timeUnit: 'ms', rows: this.rows, stateColumn: 'state', warnings: [] };
+    }
+    if (this.down === true) this.warnings.push(`${this.name}: the capture ends with the key down; the last key-down is left out`);
+    if (this.firstDownAtStart && this.marks.length > 0) this.warnings.push(`${this.name}: the capture starts with the key down; the first mark starts at the first row`);
+    if (this.marks.length === 0) throw new InputError(`${this.name}: no complete key-down in ${this.rows} rows (no edges)`);
+    return { marks: this.marks, timeUnit: this.timeUnit, rows: this.rows, stateColumn: this.stateName, warnings: this.warnings };
+  }
 }
 
+const csvError = (name: string, err: unknown): InputError =>
+  err instanceof InputError ? err : new InputError(`${name}: not a readable CSV file (${(err as Error).message})`);
+
 /**
- * Reads a logic-capture CSV into key-down intervals.
+ * Reads a logic-capture CSV held in memory into key-down intervals.
  * @throws InputError naming the row for a missing header, a time that goes back, an unknown state
  *   value, or a capture with no key-down.
  * @example parseCapture('time_ms,state\n0,1\n60,0\n').marks //=> [[0, 60]]
  */
 export function parseCapture(text: string, options: CaptureReadOptions = {}): Capture {
-  const name = options.name ?? 'capture';
-  const rows = parseRows(text, name);
-  if (rows.length === 0) throw new InputError(`${name}: empty capture`);
-  const header = rows[0]!.record.map((h) => h.trim());
-  if (header.join(',').toLowerCase() === 'state,startms,durationms') return readIntervalCsv(rows, name);
-
-  const timeCol = header.findIndex((h) => timeUnitFromHeader(h) !== null);
-  if (timeCol < 0) {
-    throw new InputError(`${name}: row ${rows[0]!.info.lines}: the first row must name the columns, with the time unit (e.g. time_s,state or time_ms,state)`);
+  const reader = new CaptureRows(options);
+  try {
+    (parse(text, CSV_OPTIONS) as string[][]).forEach((record, i) => reader.push(record, i + 1));
+  } catch (err) {
+    throw csvError(options.name ?? 'capture', err);
   }
-  const timeUnit = timeUnitFromHeader(header[timeCol]!)!;
-  let stateCol: number;
-  if (options.column !== undefined) {
-    stateCol = header.findIndex((h) => h.toLowerCase() === options.column!.toLowerCase());
-    if (stateCol < 0) throw new InputError(`${name}: no column '${options.column}' (columns: ${header.join(', ')})`);
-  } else {
-    stateCol = header.findIndex((h) => /^(state|key|level|value)$/i.test(h));
-    if (stateCol < 0) stateCol = header.findIndex((_, i) => i !== timeCol);
-    if (stateCol < 0) throw new InputError(`${name}: needs a state column next to the time column`);
-  }
-
-  const marks: Interval[] = [];
-  const warnings: string[] = [];
-  let prevTime = -Infinity;
-  let down: boolean | null = null;
-  let downSince = 0;
-  let firstDownAtStart = false;
-  for (const [k, { record, info }] of rows.slice(1).entries()) {
-    const where = `${name}: row ${info.lines}`;
-    const timeText = record[timeCol] ?? '';
-    const t = Number(timeText) * MS_PER[timeUnit];
-    if (timeText === '' || !Number.isFinite(t)) throw new InputError(`${where}: time '${timeText}' is not a number`);
-    if (t < prevTime) throw new InputError(`${where}: time ${timeText} goes back (the previous row is later); rows must be in time order`);
-    prevTime = t;
-    const raw = (record[stateCol] ?? '').toLowerCase();
-    let isDown: boolean;
-    if (raw === 'down') isDown = true;
-    else if (raw === 'up') isDown = false;
-    else if (DOWN_WORDS.has(raw)) isDown = !options.activeLow;
-    else if (UP_WORDS.has(raw)) isDown = Boolean(options.activeLow);
-    else throw new InputError(`${where}: unknown state '${record[stateCol] ?? ''}' (expected 1/0, high/low, on/off or down/up)`);
-    if (down === null && isDown && k === 0) firstDownAtStart = true;
-    if (isDown && down !== true) downSince = t;
-    if (!isDown && down === true && t > downSince) marks.push([downSince, t]);
-    down = isDown;
-  }
-  if (down === true) warnings.push(`${name}: the capture ends with the key down; the last key-down is left out`);
-  if (firstDownAtStart && marks.length > 0) warnings.push(`${name}: the capture starts with the key down; the first mark starts at the first row`);
-  if (marks.length === 0) throw new InputError(`${name}: no complete key-down in ${rows.length - 1} rows (no edges)`);
-  return { marks, timeUnit, rows: rows.length - 1, stateColumn: header[stateCol]!, warnings };
+  return reader.finish();
 }
 
-/** Reads a logic-capture CSV file; see {@link parseCapture}. */
+/**
+ * Reads a logic-capture CSV file as a stream (memory grows with the marks, not the rows, so
+ * sample-per-row exports of long captures are fine); see {@link parseCapture}.
+ */
 export async function readCaptureFile(path: string, options: CaptureReadOptions = {}): Promise<Capture> {
-  return parseCapture((await readInputFile(path)).toString('utf8'), { name: path, ...options });
+  await peekFile(path, 0); // one-line errors for a missing file or a folder
+  const reader = new CaptureRows({ name: path, ...options });
+  let line = 0;
+  try {
+    for await (const record of createReadStream(path).pipe(parseStream(CSV_OPTIONS))) reader.push(record as string[], ++line);
+  } catch (err) {
+    throw csvError(path, err);
+  }
+  return reader.finish();
+}
+
+/** The first `bytes` bytes of a file, with one-line errors for a missing file, a folder or no permission. */
+export async function peekFile(path: string, bytes: number): Promise<Buffer> {
+  let handle;
+  try {
+    handle = await open(path, 'r');
+    const st = await handle.stat();
+    if (st.isDirectory()) throw new InputError(`${path}: is a folder, not a file`);
+    const buf = Buffer.alloc(Math.min(bytes, st.size));
+    await handle.read(buf, 0, buf.length, 0);
+    return buf;
+  } catch (err) {
+    if (err instanceof InputError) throw err;
+    const code = (err as NodeJS.ErrnoException).code;
+    if (code === 'ENOENT') throw new InputError(`${path}: no such file`);
+    if (code === 'EISDIR') throw new InputError(`${path}: is a folder, not a file`);
+    throw new InputError(`${path}: cannot read (${code === 'EACCES' ? 'permission denied' : (code ?? 'error')})`);
+  } finally {
+    await handle?.close();
+  }
 }
 
 /**

@@ -3,7 +3,10 @@ import { InputError } from '../../src/core/errors.js';
 import { measureTiming } from '../../src/core/measure/timing.js';
 import { planKeying } from '../../src/core/timing/plan.js';
 import { planToCsv } from '../../src/io/export.js';
-import { captureFromMarks, parseCapture, timeUnitFromHeader } from '../../src/io/capture.js';
+import { mkdtempSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { captureFromMarks, parseCapture, readCaptureFile, timeUnitFromHeader } from '../../src/io/capture.js';
 import { keyedMarks, standardLengths } from './keyed-marks.js';
 
 describe('logic-capture CSV', () => {
@@ -86,4 +89,29 @@ describe('logic-capture CSV', () => {
     expect(cap.marks).toEqual([[0, 60]]);
     expect(cap.warnings.some((w) => w.includes('ends with the key down'))).toBe(true);
   });
+
+  it('streams a capture file to the same marks as the in-memory reader', async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'keyform-capture-'));
+    const path = join(dir, 'keyer.csv');
+    // One row per 0.5 ms sample, as some analysers export: mostly repeated states.
+    const rows = ['time_ms,state'];
+    let k = 0;
+    for (let t = 0; t <= plan.totalMs + 10; t += 0.5) {
+      while (k < plan.marks.length && t >= plan.marks[k]![1]) k++;
+      rows.push(`${t},${k < plan.marks.length && t >= plan.marks[k]![0] ? 1 : 0}`);
+    }
+    writeFileSync(path, rows.join('\n') + '\n');
+    const streamed = await readCaptureFile(path);
+    expect(streamed).toEqual(parseCapture(rows.join('\n'), { name: path }));
+    expect(streamed.marks.length).toBe(plan.marks.length);
+    streamed.marks.forEach(([a, b], i) => {
+      // Edges land on the next 0.5 ms sample at or after the planned edge.
+      expect(a - plan.marks[i]![0]).toBeGreaterThanOrEqual(0);
+      expect(a - plan.marks[i]![0]).toBeLessThan(0.5);
+      expect(b - plan.marks[i]![1]).toBeGreaterThanOrEqual(0);
+      expect(b - plan.marks[i]![1]).toBeLessThan(0.5);
+    });
+    await expect(readCaptureFile(join(dir, 'nothing.csv'))).rejects.toThrow(`${join(dir, 'nothing.csv')}: no such file`);
+  });
 });
+

@@ -3,13 +3,13 @@ import { InputError } from '../../core/errors.js';
 import { alignTimelines, type Alignment, type PlanElements } from '../../core/measure/align.js';
 import { measureTiming, type ClassStats, type TimingReport } from '../../core/measure/timing.js';
 import { planElementsFromJson } from '../../core/measure/timing-plan.js';
-import { decodeSamples, pickChannel } from '../../core/receive/index.js';
 import type { Interval } from '../../core/timeline.js';
-import { parseCapture } from '../../io/capture.js';
+import { peekFile, readCaptureFile } from '../../io/capture.js';
 import { readInputFile } from '../../io/files.js';
 import { formatJson } from '../../io/json.js';
-import { decodeWavBytes } from '../../io/wav-read.js';
+import { openAudio } from '../../io/audio-source.js';
 import type { CommandContext } from '../io.js';
+import { decodeAudioSource } from '../analyze-recording.js';
 import { numberIn } from '../options.js';
 import { createProgress } from '../progress.js';
 import { addPlanOptions, messageFrom, planFromCli, type EncodeCliOptions } from './encode.js';
@@ -35,25 +35,23 @@ interface Observed {
 }
 
 async function readObserved(path: string, o: TimingCliOptions, ctx: CommandContext): Promise<Observed> {
-  const bytes = await readInputFile(path);
-  const head = bytes.subarray(0, 4).toString('latin1');
-  if (head === 'RIFF') {
-    const audio = decodeWavBytes(path, bytes);
-    const pick = pickChannel(audio.channels, audio.sampleRate);
-    const samples = audio.channels[pick.index]!;
-    const progress = createProgress(ctx.io, { label: path, audioSeconds: samples.length / audio.sampleRate });
-    const result = decodeSamples(samples, audio.sampleRate, { ...(o.tone !== undefined ? { toneHz: o.tone } : {}), onProgress: (f) => progress.update(f) });
+  const head = (await peekFile(path, 512)).toString('latin1');
+  if (head.startsWith('RIFF')) {
+    // Streamed through the receiver chunk by chunk: memory stays bounded for long recordings.
+    const audio = await openAudio(path);
+    const progress = createProgress(ctx.io, { label: path, audioSeconds: audio.durationMs !== null ? audio.durationMs / 1000 : null });
+    const { result, channel, channelNote } = await decodeAudioSource(audio, { toneHz: o.tone, onProgress: (f) => progress.update(f) });
     progress.done();
     if (result.marks.length === 0) throw new InputError(`${path}: no keyed tone found`);
     return {
       kind: 'wav',
       marks: result.marks.map(([a, b]) => [a, b]),
-      details: { sampleRate: audio.sampleRate, channel: pick.index, channelReason: pick.reason, toneHz: result.toneHz, snrDb: result.snrDb, decodedText: result.text, durationMs: result.durationMs },
-      warnings: result.warnings,
+      details: { sampleRate: audio.sampleRate, channel, channelNote, toneHz: result.toneHz, snrDb: result.snrDb, decodedText: result.text, durationMs: result.durationMs },
+      warnings: [...audio.warnings, ...(channelNote ? [channelNote] : []), ...result.warnings],
     };
   }
-  const text = bytes.toString('utf8');
-  if (text.trimStart().startsWith('{')) {
+  if (head.trimStart().startsWith('{')) {
+    const text = (await readInputFile(path)).toString('utf8');
     let value: unknown;
     try {
       value = JSON.parse(text);
@@ -65,7 +63,7 @@ async function readObserved(path: string, o: TimingCliOptions, ctx: CommandConte
     const plan = planElementsFromJson({ unitMs: 1, ...(value as object), characters: [] }, path);
     return { kind: 'json', marks: plan.marks, details: {}, warnings: [] };
   }
-  const cap = parseCapture(text, { name: path, activeLow: o.activeLow, column: o.column });
+  const cap = await readCaptureFile(path, { activeLow: o.activeLow, column: o.column });
   return { kind: 'capture', marks: cap.marks, details: { timeUnit: cap.timeUnit, rows: cap.rows, stateColumn: cap.stateColumn }, warnings: cap.warnings };
 }
 
