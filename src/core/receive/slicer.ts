@@ -52,7 +52,7 @@ export class LevelSlicer {
     this.peakPow = this.w * options.signalPow + this.noise;
     this.alphaSignal = Math.min(1, options.slotMs / 300);
     this.alphaNoise = Math.min(1, options.slotMs / 1500);
-    this.alphaDecay = Math.min(1, options.slotMs / 4000);
+    this.alphaDecay = Math.min(1, options.slotMs / 1500);
   }
 
   /** Carrier power of one slot during a mark (|z|² units). */
@@ -91,9 +91,16 @@ export class LevelSlicer {
     const hyst = 0.1 * (hi - lo);
     const amp = Math.sqrt(e);
     this.on = this.on ? amp > threshold - hyst : amp > threshold + hyst;
+    // Constant-false-alarm test against the noise alone: a Rayleigh amplitude with E[r²] = σ²
+    // exceeds 2.63·σ with probability e^(−6.9) ≈ 1e-3 [analytic]. Marks that pass it feed the
+    // signal level even when a fade has taken them below the slicing threshold.
+    const strong = amp > 2.63 * Math.sqrt(noise);
+    if (strong) {
+      const a = amp >= 0.6 * hi ? this.alphaSignal : 0.25 * this.alphaSignal;
+      this.peakPow += a * (e - this.peakPow);
+    }
     if (this.on) {
       this.offSlots = 0;
-      if (amp > threshold) this.peakPow += this.alphaSignal * (e - this.peakPow);
     } else {
       this.offSlots++;
       // The slot leaving the window is at least one window away from any mark the slicer saw.
