@@ -39,8 +39,9 @@ describe('charts', () => {
     const lines = spectrumPlot(offsets, dbc, { width: 10, rows: 3, spanHz: 100, floorDb: -60, necessaryHz: 100 });
     // 20 Hz per column over ±100 Hz: the ±50 Hz band covers columns 2…7, the carrier is column 5.
     expect(lines[lines.length - 2]!.trim()).toBe('──═══┼══──');
-    // The carrier peak (0 dBc) reaches the top row, the −30 dBc shoulders the middle one.
-    expect(lines[0]!.slice(5)).toBe('     █    ');
+    // Only the carrier (0 dBc) fills the top row; the columns between bins are interpolated in dB
+    // (−20, −10 | −15 dBc beside it), drawn as ▁ below and ▄ above the row's midpoint (−15 dBc).
+    expect(lines[0]!.slice(5)).toBe('   ▁▄█▁   ');
   });
 });
 

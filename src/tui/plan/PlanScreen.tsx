@@ -17,11 +17,18 @@ export interface StripLayout {
   pageMs: number;
 }
 
+/** The export caution: the full note on wide screens, a short one that keeps every point on narrow ones. */
+export function exportCaution(width: number): string {
+  const short =
+    'Caution: transmitting needs a licence and follows local rules; mind RF exposure; keying lines can carry voltage, so isolate them; defer to licensed practice.';
+  return width >= SAFETY_NOTE.length + 2 ? SAFETY_NOTE : short;
+}
+
 /** Lines the export prompt or status takes below the strip at this width. */
 export function exportLines(state: PlanState, width: number): number {
   const ex = state.exporter;
   if (!ex) return state.status ? 1 : 0;
-  const caution = ex.format === 'wav' || ex.format === 'c' ? Math.ceil((SAFETY_NOTE.length + 1) / Math.max(20, width)) : 0;
+  const caution = ex.format === 'wav' || ex.format === 'c' ? Math.ceil((exportCaution(width).length + 1) / Math.max(20, width - 1)) : 0;
   return 1 + (ex.stage === 'confirm' ? 1 : 0) + caution;
 }
 
@@ -163,7 +170,7 @@ function CharacterTable({ plan, width, rows }: { plan: KeyingPlan; width: number
   );
 }
 
-function ExportLine({ state, theme }: { state: PlanState; width: number; theme: Theme }) {
+function ExportLine({ state, width, theme }: { state: PlanState; width: number; theme: Theme }) {
   const ex = state.exporter;
   if (ex) {
     const caution = ex.format === 'wav' || ex.format === 'c';
@@ -179,7 +186,11 @@ function ExportLine({ state, theme }: { state: PlanState; width: number; theme: 
         {ex.stage === 'confirm' ? (
           <StatusLine tone="warn" symbol={SYMBOLS.warn} text={`${ex.fileName} already exists: y replaces it, n keeps it`} theme={theme} />
         ) : null}
-        {caution ? <Text color={colorFor(theme, 'dim')} wrap="wrap">{` ${SAFETY_NOTE}`}</Text> : null}
+        {caution ? (
+          <Box paddingLeft={1}>
+            <Text color={colorFor(theme, 'dim')} wrap="wrap">{exportCaution(width)}</Text>
+          </Box>
+        ) : null}
       </Box>
     );
   }

@@ -105,15 +105,19 @@ export function spectrumPlot(
     const c = Math.min(width - 1, Math.max(0, Math.floor(((f + spanHz) / (2 * spanHz)) * width)));
     colTop[c] = Math.max(colTop[c]!, dbc[i]!);
   }
-  // Columns narrower than the bins get the nearest filled column's level, so the plot has no holes.
+  // Columns between bins (when columns are narrower than bins) are interpolated linearly in dB,
+  // so the plot has no holes; columns beyond the outermost bins stay empty.
+  const known = colTop.map((v, c) => (v > -Infinity ? c : -1)).filter((c) => c >= 0);
   const filled = colTop.map((v, c) => {
     if (v > -Infinity) return v;
-    for (let d = 1; d < width; d++) {
-      const a = colTop[c - d];
-      const b = colTop[c + d];
-      if ((a ?? -Infinity) > -Infinity || (b ?? -Infinity) > -Infinity) return Math.max(a ?? -Infinity, b ?? -Infinity);
+    let lo = -1;
+    let hi = -1;
+    for (const k of known) {
+      if (k < c) lo = k;
+      else if (hi < 0) hi = k;
     }
-    return v;
+    if (lo < 0 || hi < 0) return v;
+    return colTop[lo]! + ((colTop[hi]! - colTop[lo]!) * (c - lo)) / (hi - lo);
   });
   colTop.splice(0, width, ...filled);
   const labelW = 5;
