@@ -83,7 +83,7 @@ export function errorLine(err: unknown): string {
 export interface StreamDecodeOptions {
   /** Carrier tone [Hz]; found automatically when omitted. */
   toneHz?: number;
-  /** Channel to decode (0-based); by default the one with the strongest keyed tone in the first seconds. */
+  /** Channel to decode, 0-based (the CLI's --channel counts from 1); by default the one with the strongest keyed tone in the first seconds. */
   channel?: number;
   /** Keep this much audio of the decoded channel from the start, for analyses that need samples [s] (default 0). */
   keepSeconds?: number;
@@ -112,7 +112,8 @@ export interface StreamDecode {
 export async function decodeAudioSource(audio: AudioSource, options: StreamDecodeOptions = {}): Promise<StreamDecode> {
   const { sampleRate, channelCount } = audio;
   if (options.channel !== undefined && (!Number.isInteger(options.channel) || options.channel < 0 || options.channel >= channelCount)) {
-    throw new InputError(`${audio.name}: channel ${options.channel} does not exist (the input has ${channelCount}, numbered from 0)`);
+    const n = `${channelCount} channel${channelCount === 1 ? '' : 's'}`;
+    throw new InputError(`${audio.name}: channel ${Number(options.channel) + 1} does not exist (the input has ${n}, numbered from 1)`);
   }
   const totalFrames = audio.durationMs !== null ? Math.round((audio.durationMs / 1000) * sampleRate) : null;
   const keepFrames = Math.round((options.keepSeconds ?? 0) * sampleRate);
@@ -143,7 +144,7 @@ export async function decodeAudioSource(audio: AudioSource, options: StreamDecod
     const joined = concatChunks(held, channelCount);
     const pick = pickChannel(joined, sampleRate);
     channel = pick.index;
-    channelNote = `${audio.name}: using channel ${channel} of ${channelCount} (${pick.reason})`;
+    channelNote = `${audio.name}: using ${pick.reason}`;
     held.length = 0;
     feed(joined[channel]!);
   };

@@ -56,13 +56,13 @@ describe('decoding a raw PCM pipe chunk by chunk (keyform decode - --raw s16le -
     const audio = await openAudio('-', { stdin: pipeOf(s16le([noise, signal]), 4096), raw: 's16le', rate: 8000, channels: 2 });
     const { result, channel, channelNote } = await decodeAudioSource(audio);
     expect(channel).toBe(1);
-    expect(channelNote).toMatch(/using channel 1 of 2/);
+    expect(channelNote).toMatch(/^stdin: using channel 2 of 2/);
     expect(result.text.trim()).toBe(text);
   });
 
   it('refuses a channel the input does not have', async () => {
     const audio = await openAudio('-', { stdin: pipeOf(Buffer.alloc(16000), 1000), raw: 's16le', rate: 8000 });
-    await expect(decodeAudioSource(audio, { channel: 1 })).rejects.toThrow(/stdin: channel 1 does not exist \(the input has 1/);
+    await expect(decodeAudioSource(audio, { channel: 1 })).rejects.toThrow(/stdin: channel 2 does not exist \(the input has 1 channel, numbered from 1\)/);
   });
 });
 

@@ -183,12 +183,13 @@ function fmt(x: number | null, digits: number, width: number): string {
   return (x === null ? '–' : x.toFixed(digits)).padStart(width);
 }
 
-/** One human-readable line per file, for stdout while the batch runs. */
-export function formatRowLine(row: BatchRow, nameWidth: number): string {
+/** One human-readable line per file, for stdout while the batch runs; `maxWidth` cuts long text (a terminal). */
+export function formatRowLine(row: BatchRow, nameWidth: number, maxWidth = Infinity): string {
   const name = row.file.length > nameWidth ? `…${row.file.slice(row.file.length - nameWidth + 1)}` : row.file.padEnd(nameWidth);
   const notes = row.warnings.length > 0 ? `  (${row.warnings.length} warning${row.warnings.length > 1 ? 's' : ''})` : '';
   const tail = row.verdict === 'error' ? row.error ?? '' : `${row.text}${notes}`;
-  return `${name} ${fmt(row.durationS, 1, 7)} ${fmt(row.wpm, 1, 5)} ${fmt(row.toneHz, 0, 5)} ${fmt(row.snrDb, 1, 5)} ${fmt(row.riseMs, 2, 6)} ${fmt(row.occupiedBandwidthHz, 0, 6)}  ${row.verdict.padEnd(9)} ${tail}`;
+  const line = `${name} ${fmt(row.durationS, 1, 7)} ${fmt(row.wpm, 1, 5)} ${fmt(row.toneHz, 0, 5)} ${fmt(row.snrDb, 1, 5)} ${fmt(row.riseMs, 2, 6)} ${fmt(row.occupiedBandwidthHz, 0, 6)}  ${row.verdict.padEnd(9)} ${tail}`;
+  return line.length > maxWidth ? `${line.slice(0, Math.max(0, maxWidth - 1))}…` : line;
 }
 
 export function headerLine(nameWidth: number): string {
@@ -220,7 +221,7 @@ export function registerBatch(program: Command, ctx: CommandContext): void {
     .option('--force', 'replace --out if it exists')
     .option('--json', 'print all rows and the summary as one JSON document on stdout')
     .option('--tone <hz>', 'carrier tone of every recording (Hz, 100–20000; default: found per file)', numberIn('--tone', 100, 20_000))
-    .option('--channel <n>', 'channel to use, from 0 (default: the one with the strongest keyed tone)', numberIn('--channel', 0, 255, { integer: true }))
+    .option('--channel <n>', 'channel to use, 1 = first (default: the one with the strongest keyed tone)', numberIn('--channel', 1, 256, { integer: true }))
     .option('--shape-seconds <s>', 'audio the shape analysis looks at, from the start of each file (s, 1–3600)', numberIn('--shape-seconds', 1, 3600), 60)
     .option('--no-shape', 'skip the keying-shape analysis (rise time and bandwidth stay empty)')
     .addHelpText(
@@ -262,7 +263,12 @@ async function runBatch(inputs: string[], o: BatchCliOptions, ctx: CommandContex
   const nameWidth = Math.min(40, Math.max(12, ...files.map((f) => f.length)));
   const lines = !o.json;
   if (lines) io.stdout.write(`${headerLine(nameWidth)}\n`);
-  const options: BatchTask['options'] = { toneHz: o.tone, channel: o.channel, shapeSeconds: o.shapeSeconds, skipShape: !o.shape };
+  const options: BatchTask['options'] = {
+    toneHz: o.tone,
+    channel: o.channel === undefined ? undefined : o.channel - 1,
+    shapeSeconds: o.shapeSeconds,
+    skipShape: !o.shape,
+  };
 
   const redraw = (): void => {
     const audioS = rows.reduce((s, r) => s + (r.durationS ?? 0), 0);
@@ -273,7 +279,8 @@ async function runBatch(inputs: string[], o: BatchCliOptions, ctx: CommandContex
     rows.push(row);
     writer?.append(row);
     progress.done();
-    if (lines) io.stdout.write(`${formatRowLine(row, nameWidth)}\n`);
+    // On a terminal, long text is cut to the width (the report file and --json keep all of it).
+    if (lines) io.stdout.write(`${formatRowLine(row, nameWidth, io.stdout.isTTY ? (io.stdout.columns ?? 120) : Infinity)}\n`);
     redraw();
   };
   // Keep the elapsed time moving while long files are analysed (TTY only; the timer does not hold the process).
