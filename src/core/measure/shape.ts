@@ -113,6 +113,8 @@ export interface ShapeOptions {
   findShortestRise?: boolean;
   /** Chirp window after key-down [ms]; default 10. */
   chirpWindowMs?: number;
+  /** Envelope half band around the tone [Hz], 100…20000; default 4000, narrowed automatically for noisy recordings. */
+  envelopeHalfBandHz?: number;
   /** Called with the fraction done (0…1). */
   onProgress?: (fraction: number) => void;
 }
@@ -196,6 +198,9 @@ function spectralFigures(
   return { spectrum, offsets, dbc, referencePower: ref, occupied, uncorrected, noiseApplied, noiseFloorDbc: noiseApplied ? medianNoiseDbc : null, xdb, clicks, verdict };
 }
 
+/** Narrower envelope half-bands tried, in order, when most marks are too noisy for the wide one [Hz]. */
+export const NARROWER_BANDS_HZ = [1500, 600, 300] as const;
+
 /** Shortest element or gap taken as keying when estimating the unit [ms]. */
 export const MIN_ELEMENT_MS = 8;
 
@@ -226,10 +231,10 @@ export function estimateUnitMs(marks: ReadonlyArray<{ startMs: number; endMs: nu
 }
 
 /** Runs a hard-keyed burst through the envelope: its 10–90 % rise and overshoot are the envelope's own. */
-function envelopeStep(sampleRate: number, toneHz: number): { riseMs: number; overshootPct: number } {
+function envelopeStep(sampleRate: number, toneHz: number, halfBandHz: number): { riseMs: number; overshootPct: number } {
   const marks: Array<[number, number]> = [[0, 40]];
   const t = synthesizeTone({ marks, sampleRate, toneHz, levelDb: -6, edge: 'hard', riseMs: 0, padMs: 40 });
-  const env = magnitude(complexBaseband(t.samples, sampleRate, { toneHz }));
+  const env = magnitude(complexBaseband(t.samples, sampleRate, { toneHz, halfBandHz }));
   const m = measureEdges(env, sampleRate).marks[0];
   return { riseMs: m?.rise?.rise10to90Ms ?? NaN, overshootPct: m?.overshootPct ?? NaN };
 }
@@ -253,7 +258,7 @@ function composeReport(input: ShapeInputs, options: ShapeOptions, analysis: { ed
   const falls = measured.map((m) => m.fall!.rise10to90Ms);
   const riseMs = spreadOf(rises);
   const fallMs = spreadOf(falls);
-  const step = envelopeStep(sampleRate, toneHz);
+  const step = envelopeStep(sampleRate, toneHz, Math.max(100, (baseband.passBandHz[1] - baseband.passBandHz[0]) / 2));
   const resolutionMs = step.riseMs;
   const both = [...measured.map((m) => m.rise!), ...measured.map((m) => m.fall!)];
   // Share of the 10–90 % time spent below the half-way level in time order: 0.268 for an RC edge, rising or falling.
@@ -453,9 +458,28 @@ export function measureShape(samples: Float32Array, sampleRate: number, options:
     throw new InputError(`tone must be above 0 and below sampleRate/2 = ${sampleRate / 2} Hz (got ${toneHz})`);
   }
   progress(0.05);
-  const baseband = complexBaseband(samples, sampleRate, { toneHz, onProgress: (f) => progress(0.05 + 0.3 * f) });
-  const env = magnitude(baseband);
-  const edges = measureEdges(env, sampleRate);
+  const tone = toneHz;
+  const analyse = (halfBandHz: number | undefined, p0: number, p1: number) => {
+    const baseband = complexBaseband(samples, sampleRate, { toneHz: tone, halfBandHz, onProgress: (f) => progress(p0 + (p1 - p0) * f) });
+    const env = magnitude(baseband);
+    return { baseband, env, edges: measureEdges(env, sampleRate) };
+  };
+  let best = analyse(options.envelopeHalfBandHz, 0.05, 0.25);
+  if (options.envelopeHalfBandHz === undefined && best.edges.marks.length >= 3) {
+    // Too noisy for the wide envelope: try narrower ones, trading edge resolution for noise.
+    for (const halfBandHz of NARROWER_BANDS_HZ) {
+      const measuredShare = best.edges.marks.filter((m) => m.rise).length / best.edges.marks.length;
+      if (measuredShare >= 0.5 || halfBandHz >= best.baseband.narrowestSideHz) continue;
+      const next = analyse(halfBandHz, 0.25, 0.35);
+      // Only when it finds about the same marks: a narrow envelope on noise alone finds many bumps.
+      const sameMarks = Math.abs(next.edges.marks.length / best.edges.marks.length - 1) <= 0.3;
+      if (sameMarks && next.edges.marks.filter((m) => m.rise).length > best.edges.marks.filter((m) => m.rise).length) {
+        best = next;
+        warnings.push(`the recording is noisy: edges measured on a narrower envelope (tone ± ${halfBandHz} Hz), so edges shorter than a few times its own step read long`);
+      }
+    }
+  }
+  const { baseband, env, edges } = best;
   warnings.push(...edges.warnings);
   warnings.push(...cutEdgeWarnings(env, sampleRate));
   if (edges.marks.length === 0) warnings.push('no marks found: rise, fall and chirp are not measured');
