@@ -58,7 +58,8 @@ export function ShapeScreen({ state, recording, width, height, theme }: { state:
   }
   const sweep = sweepLines(state.sweep);
   if (sweep.length > 0) {
-    scrollable.push(<Text bold> Rise-time sweep (Plan speed and edge)</Text>);
+    const sw = state.sweep as { wpm?: number; edge?: string };
+    scrollable.push(<Text bold>{` Rise-time sweep at ${sw.wpm ?? ''} wpm, ${sw.edge ?? ''} edges (from the Plan settings)`}</Text>);
     for (const l of sweep) scrollable.push(<Text wrap="truncate">{`   ${l}`}</Text>);
   }
   const room = Math.max(3, height - body.length - 1);

@@ -90,12 +90,14 @@ export function sweepLines(sweep: unknown): string[] {
   const s = obj(sweep);
   const rows = (Array.isArray(sweep) ? sweep : Array.isArray(s.rows) ? s.rows : Array.isArray(s.points) ? s.points : []) as Record<string, unknown>[];
   if (rows.length === 0) return [];
-  const lines = ['rise ms   occupied    at −40 dBc   mask'];
+  const shortest = num(s.shortestRiseMs ?? s.shortestPassingRiseMs);
+  const lines = [
+    shortest !== null ? `shortest rise time that meets the mask: ${shortest.toFixed(1)} ms` : 'no rise time in the table meets the mask',
+    'rise ms   occupied    at −40 dBc   mask',
+  ];
   for (const r of rows) {
     const pass = typeof r.pass === 'boolean' ? (r.pass ? '✓ pass' : '✗ fail') : typeof obj(r.mask).pass === 'boolean' ? (obj(r.mask).pass ? '✓ pass' : '✗ fail') : '';
     lines.push(`${f(r.riseMs, 1).padStart(7)}   ${hz(r.occupiedBandwidthHz).padStart(9)}   ${hz(r.at40DbcHz ?? obj(r.bandwidthAtDbcHz)['40'] ?? r.bandwidth40DbcHz).padStart(10)}   ${pass}`);
   }
-  const shortest = num(s.shortestRiseMs ?? s.shortestPassingRiseMs);
-  if (shortest !== null) lines.push(`shortest rise time that meets the mask: ${shortest.toFixed(1)} ms`);
   return lines;
 }
