@@ -25,6 +25,8 @@ export interface SliceStep {
 
 /** Highest per-slot SNR the levels may claim (30 dB), so a noiseless file does not divide by zero. */
 const MAX_SLOT_SNR = 1000;
+/** Relative speed at which marks well below the tracked level pull it down (fades). */
+const WEAK_ALPHA = 1;
 
 export class LevelSlicer {
   private readonly w: number;
@@ -52,7 +54,7 @@ export class LevelSlicer {
     this.peakPow = this.w * options.signalPow + this.noise;
     this.alphaSignal = Math.min(1, options.slotMs / 300);
     this.alphaNoise = Math.min(1, options.slotMs / 1500);
-    this.alphaDecay = Math.min(1, options.slotMs / 1500);
+    this.alphaDecay = Math.min(1, options.slotMs / 700);
   }
 
   /** Carrier power of one slot during a mark (|z|² units). */
@@ -96,7 +98,7 @@ export class LevelSlicer {
     // signal level even when a fade has taken them below the slicing threshold.
     const strong = amp > 2.63 * Math.sqrt(noise);
     if (strong) {
-      const a = amp >= 0.6 * hi ? this.alphaSignal : 0.25 * this.alphaSignal;
+      const a = amp >= 0.6 * hi ? this.alphaSignal : WEAK_ALPHA * this.alphaSignal;
       this.peakPow += a * (e - this.peakPow);
     }
     if (this.on) {

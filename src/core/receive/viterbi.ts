@@ -27,12 +27,27 @@ const NEG = -1e300;
 const SPREAD = { dit: 0.3, dah: 0.3, elementGap: 0.35, letterGap: 0.35, wordGap: 0.35 } as const;
 /** Log prior of the gap after an element (roughly how often each follows a mark in plain text). */
 const GAP_PRIOR = { elementGap: Math.log(0.6), letterGap: Math.log(0.3), wordGap: Math.log(0.1) };
+/** Log prior cost of each 6 dB step below the tracked amplitude. */
+const WEAKER_PRIOR = -2;
 /** Paths more than this far (natural log) below the best one are dropped (beam search). */
 const BEAM = 40;
 /** Log penalty of decoding a run that is not a known character. */
 const UNKNOWN_PENALTY = -8;
 /** Log prior of each known character (0: a cost per character made decoding worse in the benchmark). */
 const CHAR_PRIOR = 0;
+
+/**
+ * Mark score: the log-likelihood ratio ln I0(x) − q of a tone of the tracked amplitude, or of a
+ * tone 6 or 12 dB weaker (with a prior cost), whichever fits best, so that marks stay visible
+ * while the amplitude tracker catches up with a fade.
+ * @param x - 2·|Σ y| over the segment. @param q - Σ A²/σ² over the segment.
+ */
+export function markScore(x: number, q: number): number {
+  const full = lnI0(x) - q;
+  const half = lnI0(0.5 * x) - 0.25 * q + WEAKER_PRIOR;
+  const quarter = lnI0(0.25 * x) - 0.0625 * q + 2 * WEAKER_PRIOR;
+  return Math.max(full, half, quarter);
+}
 
 interface DurationTable {
   min: number;
@@ -165,7 +180,7 @@ export class SequenceDecoder {
       const ai = (t - d) & M;
       const dr = this.yRe[ti]! - this.yRe[ai]!;
       const di = this.yIm[ti]! - this.yIm[ai]!;
-      llr[d] = lnI0(2 * Math.sqrt(dr * dr + di * di)) - (this.yQ[ti]! - this.yQ[ai]!);
+      llr[d] = markScore(2 * Math.sqrt(dr * dr + di * di), this.yQ[ti]! - this.yQ[ai]!);
     }
     const { parent, symbol } = this.trie;
     const n = this.n;
@@ -298,7 +313,7 @@ export class SequenceDecoder {
     const bi = b % H;
     const dr = this.yRe[bi]! - this.yRe[ai]!;
     const di = this.yIm[bi]! - this.yIm[ai]!;
-    return lnI0(2 * Math.sqrt(dr * dr + di * di)) - (this.yQ[bi]! - this.yQ[ai]!);
+    return markScore(2 * Math.sqrt(dr * dr + di * di), this.yQ[bi]! - this.yQ[ai]!);
   }
 
   /**
