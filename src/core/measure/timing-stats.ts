@@ -30,6 +30,20 @@ export function median(values: readonly number[]): number {
   return quantile(values, 0.5);
 }
 
+/**
+ * Mean of the values left after dropping a `fraction` of them at each end (20 % by default): robust
+ * to a few outliers like the median, but without the median's pull towards one step of a coarse
+ * time grid (edges quantised by a receiver).
+ * @param fraction - Share dropped at each end, 0…0.49.
+ * @example trimmedMean([1, 2, 3, 4, 100]) //=> 3 (drops 1 and 100)
+ */
+export function trimmedMean(values: readonly number[], fraction = 0.2): number {
+  if (values.length === 0) return NaN;
+  const s = [...values].sort((a, b) => a - b);
+  const k = Math.floor(s.length * fraction);
+  return mean(s.slice(k, s.length - k));
+}
+
 /** Sample standard deviation (n − 1 in the denominator); 0 for fewer than two values. @example standardDeviation([1, 3]) //=> 1.414… */
 export function standardDeviation(values: readonly number[]): number {
   if (values.length < 2) return 0;

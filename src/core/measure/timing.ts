@@ -3,8 +3,9 @@
  * speed drift and a histogram of mark and gap lengths. Pure: plain data in, plain data out.
  *
  * Definitions used throughout (the same as the planner's, src/core/timing/plan.ts):
- * - unit: half the period of a dot plus the element gap after it, (dit + element gap) / 2. Weighting
- *   and keying compensation move time from the gap to the mark and leave this period unchanged.
+ * - unit: half the period of a dot plus the element gap after it, (dit + element gap) / 2, from the
+ *   typical (20 % trimmed mean) length of each class. Weighting and keying compensation move time
+ *   from the gap to the mark and leave this period unchanged.
  * - weight: the dot's share of dot + following element gap, in %; 50 % is standard.
  * - dash/dot ratio: dah length / dit length (3 at standard timing and 50 % weight, ITU-R M.1677-1 §2).
  * - gap classes: after correcting a gap for the mark lengthening, below 2 units is an element gap,
@@ -15,7 +16,10 @@
 import { textForPattern } from '../morse/alphabet.js';
 import type { Interval } from '../timeline.js';
 import { checkRange, InputError } from '../errors.js';
-import { fitLine, median, splitTwoClasses, standardDeviation } from './timing-stats.js';
+import { fitLine, median, splitTwoClasses, standardDeviation, trimmedMean } from './timing-stats.js';
+
+/** Typical length of a class of intervals: the 20 % trimmed mean (see trimmedMean). */
+const typicalOf = (values: readonly number[]): number => trimmedMean(values, 0.2);
 
 export type ElementKind = 'dit' | 'dah';
 export type GapClass = 'element' | 'letter' | 'word';
@@ -81,9 +85,9 @@ export interface TimingReport {
   unitMs: number;
   /** Weighting [%], dot share of dot + element gap; null without a dot followed by an element gap or a dash to compare with. */
   weightPct: number | null;
-  /** Median dah / median dit; null unless both occur. */
+  /** Typical dah / typical dit (20 % trimmed means); null unless both occur. */
   dahDitRatio: number | null;
-  /** Median dit and dah lengths [ms]; null when absent. */
+  /** Typical dit and dah lengths [ms] (20 % trimmed means); null when absent. */
   ditMs: number | null;
   dahMs: number | null;
   markUnits: { dit: ClassStats | null; dah: ClassStats | null };
@@ -168,7 +172,7 @@ function classify(
 
   let gapClass: GapClass[] = gaps.map(() => 'letter');
   for (let iter = 0; iter < 4; iter++) {
-    const extra = dits.length > 0 ? median(dits) - unit : median(dahs) - 3 * unit;
+    const extra = dits.length > 0 ? typicalOf(dits) - unit : typicalOf(dahs) - 3 * unit;
     const corrected = gaps.map((g) => g + extra);
     const longer = corrected.filter((c) => c >= 2 * unit);
     const s = splitTwoClasses(longer);
@@ -176,11 +180,11 @@ function classify(
     gapClass = corrected.map((c) => (c < 2 * unit ? 'element' : c < boundary ? 'letter' : 'word'));
     const el = gaps.filter((_, i) => gapClass[i] === 'element');
     let next: number;
-    if (dits.length > 0 && el.length > 0) next = (median(dits) + median(el)) / 2;
-    else if (dahs.length > 0 && el.length > 0) next = (median(dahs) + median(el)) / 4;
-    else if (dits.length > 0 && dahs.length > 0) next = (median(dahs) - median(dits)) / 2;
-    else if (dits.length > 0) next = median(dits);
-    else next = median(dahs) / 3;
+    if (dits.length > 0 && el.length > 0) next = (typicalOf(dits) + typicalOf(el)) / 2;
+    else if (dahs.length > 0 && el.length > 0) next = (typicalOf(dahs) + typicalOf(el)) / 4;
+    else if (dits.length > 0 && dahs.length > 0) next = (typicalOf(dahs) - typicalOf(dits)) / 2;
+    else if (dits.length > 0) next = typicalOf(dits);
+    else next = typicalOf(dahs) / 3;
     if (Math.abs(next - unit) < 1e-9 * unit) {
       unit = next;
       break;
@@ -230,11 +234,11 @@ export function measureTiming(timeline: { marks: readonly Interval[] }, options:
   const dahs = lens.filter((_, i) => isDah[i]);
   const gapsOf = (c: GapClass): number[] => gaps.filter((_, i) => gapClass[i] === c);
   const el = gapsOf('element');
-  const ditMs = dits.length > 0 ? median(dits) : null;
-  const dahMs = dahs.length > 0 ? median(dahs) : null;
+  const ditMs = dits.length > 0 ? typicalOf(dits) : null;
+  const dahMs = dahs.length > 0 ? typicalOf(dahs) : null;
 
   let weightPct: number | null = null;
-  if (ditMs !== null && el.length > 0) weightPct = (100 * ditMs) / (ditMs + median(el));
+  if (ditMs !== null && el.length > 0) weightPct = (100 * ditMs) / (ditMs + typicalOf(el));
   else if (ditMs !== null && dahMs !== null) weightPct = (100 * ditMs) / (2 * unit);
   else if (dahMs !== null && el.length > 0) weightPct = (100 * (dahMs - 2 * unit)) / (2 * unit);
   if (el.length === 0) warnings.push('no gaps inside characters: the unit and weighting assume a dash/dot ratio of 3');
@@ -248,30 +252,57 @@ export function measureTiming(timeline: { marks: readonly Interval[] }, options:
   const typical = {
     dit: ditMs ?? unit,
     dah: dahMs ?? 3 * unit,
-    element: el.length > 0 ? median(el) : 2 * unit - (ditMs ?? unit),
+    element: el.length > 0 ? typicalOf(el) : 2 * unit - (ditMs ?? unit),
   };
 
-  // Word speeds: observed element-level time of each word over its typical length.
-  const wordWpm: number[] = [];
-  const scale = new Float64Array(marks.length); // each mark's word speed relative to the whole
-  let obs = 0;
-  let exp = 0;
-  let wordStart = 0;
+  // Word speeds: each word's element-level time (marks and element gaps) over the same intervals
+  // at the typical class lengths gives its speed factor. The class lengths are then re-estimated
+  // from the lengths with each word's factor divided out, so that a speed change across the
+  // recording does not distort the class shape (ten rounds; it settles in a few).
+  const wordOf = new Int32Array(marks.length);
+  let words = 0;
   marks.forEach((_, i) => {
-    obs += lens[i]!;
-    exp += isDah[i] ? typical.dah : typical.dit;
-    if (i < gaps.length && gapClass[i] === 'element') {
-      obs += gaps[i]!;
-      exp += typical.element;
-    }
-    if (i === marks.length - 1 || gapClass[i] === 'word') {
-      wordWpm.push(1200 / ((unit * obs) / exp));
-      scale.fill(obs / exp, wordStart, i + 1);
-      wordStart = i + 1;
-      obs = 0;
-      exp = 0;
-    }
+    wordOf[i] = words;
+    if (i < marks.length - 1 && gapClass[i] === 'word') words++;
   });
+  words++;
+  const hasEl = (i: number): boolean => i < gaps.length && gapClass[i] === 'element';
+  let shape = { ...typical };
+  const factor = new Float64Array(words).fill(1);
+  for (let round = 0; round < 10; round++) {
+    const obs = new Float64Array(words);
+    const exp = new Float64Array(words);
+    marks.forEach((_, i) => {
+      const w = wordOf[i]!;
+      obs[w] += lens[i]!;
+      exp[w] += isDah[i] ? shape.dah : shape.dit;
+      if (hasEl(i)) {
+        obs[w] += gaps[i]!;
+        exp[w] += shape.element;
+      }
+    });
+    let change = 0;
+    for (let w = 0; w < words; w++) {
+      const k = obs[w]! / exp[w]!;
+      change = Math.max(change, Math.abs(k - factor[w]!));
+      factor[w] = k;
+    }
+    if (round > 0 && change < 1e-12) break;
+    const norm = (keep: (i: number) => boolean, len: (i: number) => number): number[] =>
+      marks.flatMap((_, i) => (keep(i) ? [len(i) / factor[wordOf[i]!]!] : []));
+    const d = norm((i) => !isDah[i], (i) => lens[i]!);
+    const D = norm((i) => isDah[i]!, (i) => lens[i]!);
+    const e = norm(hasEl, (i) => gaps[i]!);
+    shape = {
+      dit: d.length > 0 ? typicalOf(d) : shape.dit,
+      dah: D.length > 0 ? typicalOf(D) : shape.dah,
+      element: e.length > 0 ? typicalOf(e) : shape.element,
+    };
+  }
+  // The unit of the de-drifted shape, by the same rule as the whole-recording unit.
+  const shapeUnit = dits.length > 0 && el.length > 0 ? (shape.dit + shape.element) / 2 : dits.length > 0 ? shape.dit : shape.dah / 3;
+  const wordWpm = Array.from(factor, (k) => 1200 / (k * shapeUnit));
+  const scale = Float64Array.from(wordOf, (w) => factor[w]!);
 
   // Edge jitter: within each character, the edges against the class lengths laid end to end (at
   // the word's own speed, so drift is not counted as jitter), with the character's own offset
@@ -291,9 +322,9 @@ export function measureTiming(timeline: { marks: readonly Interval[] }, options:
     const resid: number[] = [];
     let t = 0;
     ch.forEach((i, k) => {
-      if (k > 0) t += typical.element * scale[i]!;
+      if (k > 0) t += shape.element * scale[i]!;
       resid.push(marks[i]![0] - t);
-      t += (isDah[i] ? typical.dah : typical.dit) * scale[i]!;
+      t += (isDah[i] ? shape.dah : shape.dit) * scale[i]!;
       resid.push(marks[i]![1] - t);
     });
     const m = resid.reduce((a, b) => a + b, 0) / resid.length;
