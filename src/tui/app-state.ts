@@ -57,8 +57,7 @@ export function frameKeyToAction(input: string, k: KeyInfo, state: FrameState, c
 }
 
 export const FRAME_KEYS: readonly KeyHelp[] = [
-  { keys: '1 2 3', does: 'Plan · Read back · Shape' },
-  { keys: 'Tab  Shift-Tab', does: 'next / previous workspace' },
+  { keys: '1 2 3  Tab', does: 'Plan · Read back · Shape; Tab (Shift-Tab) next (previous)' },
   { keys: '?  (h)', does: 'this help (any key closes it)' },
   { keys: 'q  Ctrl-C', does: 'leave keyform (Ctrl-C also while typing)' },
 ];

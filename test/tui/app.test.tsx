@@ -106,7 +106,7 @@ describe('the app frame', () => {
     await waitFor(lastFrame, (x) => x.includes('Settings'), 'Plan');
     stdin.write('?');
     const f = await waitFor(lastFrame, (x) => x.includes('every key'), 'the help');
-    for (const k of ['Everywhere', 'Plan', 'Read back', 'Shape', 'Ctrl-C', 'export', 'expected message', 'sweep']) expect(f).toContain(k);
+    for (const k of ['Everywhere', 'Plan', 'Read back', 'Shape', 'Ctrl-C', 'export', 'meant to be sent', 'sweep']) expect(f).toContain(k);
     stdin.write(' ');
     await waitFor(lastFrame, (x) => x.includes('Settings'), 'the help to close');
   });

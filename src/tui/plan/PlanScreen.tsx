@@ -120,9 +120,7 @@ export function PlanScreen(props: { state: PlanState; planned: { plan: KeyingPla
       ) : (
         <StatusLine tone="bad" symbol={SYMBOLS.fail} text={`cannot plan: ${'error' in planned ? planned.error : ''}`} theme={theme} />
       )}
-      <Box paddingLeft={1}>
-        <StatusLine tone={pred.tone} symbol={pred.symbol} text={pred.text} theme={theme} />
-      </Box>
+      <StatusLine tone={pred.tone} symbol={pred.symbol} text={pred.text} theme={theme} />
       <Text wrap="truncate">{` ${pred.second}`}</Text>
       <Text> </Text>
       <Text bold wrap="truncate">

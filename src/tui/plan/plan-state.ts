@@ -183,11 +183,11 @@ export function planKeyToAction(input: string, k: KeyInfo, state: PlanState, pag
 
 export const PLAN_KEYS: readonly KeyHelp[] = [
   { keys: '↑ ↓  (k j)', does: 'choose a setting' },
-  { keys: '← →  (- +)', does: 'change it (edge kind cycles; Farnsworth off below the character speed)' },
-  { keys: 'Enter  (e)', does: 'type a value or the message (Enter keeps it, Esc drops it, Ctrl-U clears)' },
+  { keys: '← →  (- +)', does: 'change it (the edge kind cycles)' },
+  { keys: 'Enter  (e)', does: 'type it: Enter keeps, Esc drops, Ctrl-U clears' },
   { keys: ', .  PgUp PgDn', does: 'scroll the timeline strip' },
   { keys: 'z', does: 'whole message / detail in the strip' },
-  { keys: 'x', does: 'export: Tab picks the format, type the file name, Enter writes' },
+  { keys: 'x', does: 'export: Tab format, type a name, Enter writes' },
 ];
 
 /** Short footer hints for the Plan workspace. */

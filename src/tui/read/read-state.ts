@@ -143,9 +143,9 @@ export function readKeyToAction(input: string, k: KeyInfo, state: ReadState, pag
 
 export const READ_KEYS: readonly KeyHelp[] = [
   { keys: '↑ ↓  (k j)', does: 'choose a recording' },
-  { keys: 'Enter  (o)', does: 'decode it (a progress bar shows while it runs; keys stay live)' },
-  { keys: 'e', does: 'type the expected message to compare against (empty to clear)' },
-  { keys: '← →  z', does: 'scroll the envelope chart; z: whole recording / one column per unit' },
+  { keys: 'Enter  (o)', does: 'decode it (keys stay live while it runs)' },
+  { keys: 'e', does: 'type the message meant to be sent, to compare' },
+  { keys: '← →  z', does: 'scroll the envelope; z whole recording / detail' },
   { keys: 'v', does: 'lower pane: timing histogram / comparison' },
   { keys: ', .  PgUp PgDn', does: 'scroll the lower pane' },
 ];

@@ -117,13 +117,13 @@ export function comparisonLines(report: Record<string, unknown>): { verdict: str
     `${pass === null ? '' : pass ? 'PASS' : 'FAIL'} (±${fmt(report.tolerancePct, 0)} % of a unit) · ${missing} missing · ${extra} extra · ` +
     `largest error ${fmt(report.maxErrorMs)} ms (${fmt(report.maxErrorPct, 0)} %) · offset ${fmt(report.offsetMs)} ms`;
   const signed = (x: number | null, unit: string, d = 1): string => (x === null ? '–' : `${x >= 0 ? '+' : ''}${x.toFixed(d)}${unit}`);
-  const lines: string[] = ['   #  char kind  status   start error       length error'];
+  const lines: string[] = ['  # char kind status  start error    length error'];
   const elements = Array.isArray(report.elements) ? (report.elements as Record<string, unknown>[]) : [];
   elements.forEach((e, i) => {
     const start = `${signed(num(e.startErrorMs), ' ms')} ${signed(num(e.startErrorPct), ' %', 0)}`;
     const length = `${signed(num(e.lengthErrorMs), ' ms')} ${signed(num(e.lengthErrorPct), ' %', 0)}`;
     lines.push(
-      `${String(num(e.index) ?? i).padStart(4)}  ${String(e.char ?? '').padEnd(4)} ${String(e.kind ?? '').padEnd(4)}  ${String(e.status ?? '').padEnd(7)}  ${start.padEnd(16)}  ${length}`,
+      `${String(num(e.index) ?? i).padStart(3)} ${String(e.char ?? '').padEnd(4)} ${String(e.kind ?? '').padEnd(4)} ${String(e.status ?? '').padEnd(7)} ${start.padEnd(14)} ${length}`,
     );
   });
   return { verdict, pass, lines };

@@ -62,7 +62,7 @@ export function shapeKeyToAction(input: string, k: KeyInfo): ShapeRequest | null
 
 export const SHAPE_KEYS: readonly KeyHelp[] = [
   { keys: 'Enter  (m)', does: 'measure the recording chosen in Read back' },
-  { keys: 'p', does: 'predict the shape of the Plan settings (speed, edge, rise time)' },
+  { keys: 'p', does: 'predict it from the Plan settings' },
   { keys: 'w', does: 'sweep the rise time at the Plan speed and edge' },
   { keys: '↑ ↓  , .', does: 'scroll the report' },
 ];

@@ -56,10 +56,11 @@ export function HelpOverlay({ groups, width, theme }: { groups: { title: string;
   );
 }
 
-/** A line with a leading symbol, coloured only when colour is on (the symbol carries the meaning). */
+/** An indented line with a leading symbol, coloured only when colour is on (the symbol carries the meaning). */
 export function StatusLine({ tone, symbol, text, theme }: { tone: 'good' | 'bad' | 'warn' | 'plain'; symbol: string; text: string; theme: Theme }) {
   return (
     <Text color={colorFor(theme, tone)} wrap="truncate">
+      {' '}
       {symbol ? `${symbol} ` : ''}
       {text}
     </Text>
