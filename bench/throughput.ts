@@ -127,11 +127,17 @@ function runChild(mode: 'read' | 'decode', path: string): ChildResult {
   return JSON.parse(r.stdout) as ChildResult;
 }
 
-function timeCli(args: string[]): { wallS: number; status: number | null; stderr: string } {
+/** Runs the built CLI; with /usr/bin/time (GNU time) also its CPU seconds and peak RSS. */
+function timeCli(args: string[]): { wallS: number; cpuS: number | null; maxRssMB: number | null; status: number | null; stderr: string } {
   const bin = fileURLToPath(new URL('../dist/cli/bin.js', import.meta.url));
+  const gnuTime = existsSync('/usr/bin/time');
+  const command = gnuTime ? '/usr/bin/time' : process.execPath;
+  const argv = gnuTime ? ['-f', 'keyform-bench %U %S %M', process.execPath, bin, ...args] : [bin, ...args];
   const t0 = performance.now();
-  const r = spawnSync(process.execPath, [bin, ...args], { encoding: 'utf8', maxBuffer: 16 << 20 });
-  return { wallS: (performance.now() - t0) / 1000, status: r.status, stderr: r.stderr };
+  const r = spawnSync(command, argv, { encoding: 'utf8', maxBuffer: 16 << 20 });
+  const wallS = (performance.now() - t0) / 1000;
+  const m = /keyform-bench ([\d.]+) ([\d.]+) (\d+)/.exec(r.stderr);
+  return { wallS, cpuS: m ? Number(m[1]) + Number(m[2]) : null, maxRssMB: m ? Number(m[3]) / 1024 : null, status: r.status, stderr: r.stderr };
 }
 
 // ---------------------------------------------------------------- main
@@ -205,10 +211,13 @@ if (!existsSync(bin) || !existsSync(fileURLToPath(new URL('../dist/cli/batch-wor
   const one = timeCli(['batch', batchDir, '--jobs', '1', '--json']);
   const two = timeCli(['batch', batchDir, '--jobs', '2', '--json']);
   say(`Batch: ${batchFiles} files × ${batchMinutes} min at 8 kHz (decode + timing + shape per file), built CLI`);
-  printTable(['workers', 'wall time', 'speed-up'], [
-    ['1', `${one.wallS.toFixed(2)} s`, '1.00×'],
-    ['2', `${two.wallS.toFixed(2)} s`, `${(one.wallS / two.wallS).toFixed(2)}×`],
+  const cpu = (r: ReturnType<typeof timeCli>): string => (r.cpuS === null ? '–' : `${r.cpuS.toFixed(2)} s (${Math.round((100 * r.cpuS) / r.wallS)} %)`);
+  const rss = (r: ReturnType<typeof timeCli>): string => (r.maxRssMB === null ? '–' : `${r.maxRssMB.toFixed(0)} MB`);
+  printTable(['workers', 'wall time', 'speed-up', 'CPU time (use)', 'peak RSS, one process'], [
+    ['1', `${one.wallS.toFixed(2)} s`, '1.00×', cpu(one), rss(one)],
+    ['2', `${two.wallS.toFixed(2)} s`, `${(one.wallS / two.wallS).toFixed(2)}×`, cpu(two), rss(two)],
   ]);
+  say('(CPU time covers all threads; a use near 100 % per worker means the machine was free for it)');
   if (one.status !== 0 || two.status !== 0) say(`(batch exit codes ${one.status} and ${two.status}: ${(one.stderr + two.stderr).trim().split('\n').slice(-2).join(' / ')})`);
 }
 say(`load average ${load()} at the end (other processes on the machine slow the wall-clock figures)`);

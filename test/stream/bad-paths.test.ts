@@ -54,3 +54,31 @@ for (const [label, threshold] of [['whole-file', undefined], ['streaming', 0]] a
     });
   });
 }
+
+describe('bad inputs through the command line: `keyform: <file>: <why>` on stderr, exit 2', () => {
+  async function cli(args: string[]): Promise<{ code: number; out: string; err: string }> {
+    const { main } = await import('../../src/cli/main.js');
+    let out = '';
+    let err = '';
+    const io = {
+      stdout: { write: (s: string | Uint8Array) => ((out += String(s)), true), isTTY: false },
+      stderr: { write: (s: string | Uint8Array) => ((err += String(s)), true), isTTY: false },
+      stdin: process.stdin,
+      env: { NO_COLOR: '1' },
+    };
+    const code = await main(args, io);
+    return { code, out, err };
+  }
+
+  it.each([
+    ['a nonexistent path', join(dir, 'missing.wav'), 'no such file'],
+    ['a folder given as a file', folder, 'is a folder, not a file'],
+    ['an empty file', empty, 'empty file'],
+    ['a text file named .wav', textWav, 'not a WAV file (no RIFF/WAVE header)'],
+  ])('keyform decode with %s', async (_what, path, why) => {
+    const r = await cli(['decode', path]);
+    expect(r.code).toBe(2);
+    expect(r.out).toBe('');
+    expect(r.err).toBe(`keyform: ${path}: ${why}\n`);
+  });
+});
