@@ -96,6 +96,9 @@ export async function openAudio(pathOrDash: string, options: OpenAudioOptions = 
   let blocks: AsyncIterator<Uint8Array>;
   if (isStdin) {
     if (!options.stdin) throw new InputError('no stdin to read from');
+    if ((options.stdin as { isTTY?: boolean }).isTTY) {
+      throw new InputError('- reads audio from stdin, but stdin is a terminal: pipe a recording or a recorder into keyform');
+    }
     blocks = readStreamBlocks(options.stdin)[Symbol.asyncIterator]();
   } else {
     blocks = readFileBlocks(pathOrDash, options.blockBytes)[Symbol.asyncIterator]();
