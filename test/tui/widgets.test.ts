@@ -84,9 +84,10 @@ describe('shape views', () => {
     };
     const s = shapeSummary(report);
     expect(s.verdict.pass).toBe(false);
-    expect(s.verdict.text).toBe('FAIL: 1 mask point exceeded; worst +3.0 dB at ±1.0 kHz · a rise of 4.0 ms or more would meet it');
+    expect(s.verdict.text).toBe('FAIL: 1 point over the mask, worst +3.0 dB at ±1.0 kHz; 4.0 ms rise meets it');
     // ITU-R SM.1138 worked example: 100 Hz necessary bandwidth, designator 100HA1AAN.
-    expect(s.lines[3]).toContain('100 Hz · 100HA1AAN · occupied/necessary ×1.5');
+    expect(s.lines[4]).toBe('Necessary (ITU-R SM.1138) 100 Hz, 100HA1AAN · occupied/necessary ×1.5');
+    for (const line of s.lines) expect(line.length).toBeLessThanOrEqual(78);
   });
 
   it('tabulates a rise-time sweep', () => {

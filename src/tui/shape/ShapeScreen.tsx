@@ -18,7 +18,7 @@ export function ShapeScreen({ state, recording, width, height, theme }: { state:
     <Text wrap="truncate">
       <Text bold>{' Source: '}</Text>
       {state.label ? `${state.label} (${state.source === 'recording' ? 'measured' : 'predicted'})` : 'nothing yet'}
-      <Text color={colorFor(theme, 'dim')}>{`  · Enter measures ${recording ?? '(choose a recording in Read back)'} · p predicts from Plan · w sweeps`}</Text>
+      {!state.label ? <Text color={colorFor(theme, 'dim')}>{`  · Enter measures ${recording ?? '(choose a recording in Read back)'}`}</Text> : null}
     </Text>,
   );
   if (state.job) {

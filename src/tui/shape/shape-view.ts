@@ -23,22 +23,28 @@ export function spectrumOf(report: Record<string, unknown>): { offsetHz: ArrayLi
   return { offsetHz, dbc, note: [rbw !== null ? `RBW ${f(rbw, 1)} Hz` : null, win].filter(Boolean).join(', ') };
 }
 
-/** The report's figures as text lines. */
+/** The report's figures as short text lines (each fits 80 columns), and the mask verdict. */
 export function shapeSummary(report: Record<string, unknown>): { lines: string[]; verdict: { pass: boolean | null; text: string } } {
   const rise = obj(report.riseMs);
   const fall = obj(report.fallMs);
   const chirp = obj(report.chirpHz);
   const at = obj(report.bandwidthAtDbcHz);
   const mask = obj(report.mask);
-  const lines: string[] = [];
-  lines.push(`Rise 10–90 %: median ${f(rise.median, 2)} ms (p10 ${f(rise.p10, 2)}, p90 ${f(rise.p90, 2)}) · fall: median ${f(fall.median, 2)} ms (p10 ${f(fall.p10, 2)}, p90 ${f(fall.p90, 2)})`);
-  const edge = typeof report.edgeKind === 'string' ? report.edgeKind : typeof report.edge === 'string' ? report.edge : null;
   const over = obj(report.overshootPct);
-  lines.push(`${edge ? `Edge looks ${edge} · ` : ''}chirp: median ${f(chirp.median)} Hz, worst ${f(chirp.worst)} Hz · overshoot median ${f(over.median)} %, worst ${f(over.worst)} %`);
+  const lines: string[] = [];
+  lines.push(`Rise 10–90 % ${f(rise.median, 2)} ms (p10 ${f(rise.p10, 2)}, p90 ${f(rise.p90, 2)}) · fall ${f(fall.median, 2)} ms (p10 ${f(fall.p10, 2)}, p90 ${f(fall.p90, 2)})`);
+  const edge = typeof report.edgeKind === 'string' ? report.edgeKind : null;
+  lines.push(`${edge ? `Edge ${edge} · ` : ''}overshoot ${f(over.median)} % (worst ${f(over.worst)} %)`);
+  const windowMs = num(chirp.windowMs);
+  lines.push(`Chirp ${f(chirp.median)} Hz median, ${f(chirp.worst)} Hz worst${windowMs !== null ? ` (first ${windowMs} ms of each mark)` : ''}`);
   const occ = num(report.occupiedBandwidthHz);
   const nec = num(report.necessaryBandwidthHz);
-  lines.push(`Occupied bandwidth (99 %, ITU-R SM.328) ${hz(occ)} · at −20/−40/−60 dBc ${hz(at['20'])} / ${hz(at['40'])} / ${hz(at['60'])}`);
-  lines.push(`Necessary bandwidth (ITU-R SM.1138, B·K) ${hz(nec)}${typeof report.designator === 'string' ? ` · ${report.designator}` : ''}${occ !== null && nec ? ` · occupied/necessary ×${(occ / nec).toFixed(1)}` : ''}`);
+  lines.push(`Occupied (99 %, SM.328) ${hz(occ)} · at −20/−40/−60 dBc ${hz(at['20'])} / ${hz(at['40'])} / ${hz(at['60'])}`);
+  const k = num(report.k);
+  lines.push(
+    `Necessary (ITU-R SM.1138${k !== null ? `, K = ${k}` : ''}) ${hz(nec)}${typeof report.designator === 'string' ? `, ${report.designator}` : ''}` +
+      `${occ !== null && nec ? ` · occupied/necessary ×${(occ / nec).toFixed(1)}` : ''}`,
+  );
   const clicks = Array.isArray(report.clickDbc) ? (report.clickDbc as Record<string, unknown>[]) : [];
   if (clicks.length > 0) {
     const worstSide = (c: Record<string, unknown>): number | null => {
@@ -46,26 +52,26 @@ export function shapeSummary(report: Record<string, unknown>): { lines: string[]
       const b = num(c.upperDbc);
       return a === null ? b : b === null ? a : Math.max(a, b);
     };
-    lines.push(`Clicks: ${clicks.map((c) => `±${formatHz(num(c.offsetHz) ?? 0)} ${f(worstSide(c), 0)} dBc`).join(' · ')}`);
+    lines.push(`Clicks ${clicks.map((c) => `±${formatHz(num(c.offsetHz) ?? 0)} ${f(worstSide(c), 0)}`).join(' · ')} dBc`);
   }
   const nc = obj(report.noiseCorrection);
-  if (nc.applied === true && num(nc.uncorrectedHz) !== null) lines.push(`Noise floor removed before the 99 % band (without that it would read ${hz(nc.uncorrectedHz)})`);
+  if (nc.applied === true && num(nc.uncorrectedHz) !== null) lines.push(`Noise floor removed before the 99 % band (uncorrected ${hz(nc.uncorrectedHz)})`);
   const pass = typeof mask.pass === 'boolean' ? mask.pass : null;
   const violations = Array.isArray(mask.violations) ? (mask.violations as Record<string, unknown>[]) : [];
   let worst = '';
   if (violations.length > 0) {
-    const v = violations.reduce((a, b) => ((num(b.excessDb ?? b.overDb ?? b.byDb) ?? 0) > (num(a.excessDb ?? a.overDb ?? a.byDb) ?? 0) ? b : a));
-    const by = num(v.excessDb ?? v.overDb ?? v.byDb);
+    const v = violations.reduce((a, b) => ((num(b.excessDb) ?? 0) > (num(a.excessDb) ?? 0) ? b : a));
+    const by = num(v.excessDb);
     const at2 = num(v.offsetHz);
-    worst = `; worst ${by !== null ? `+${by.toFixed(1)} dB` : ''}${at2 !== null ? ` at ±${formatHz(Math.abs(at2))}` : ''}`;
+    worst = `, worst ${by !== null ? `+${by.toFixed(1)} dB` : ''}${at2 !== null ? ` at ±${formatHz(Math.abs(at2))}` : ''}`;
   }
-  const shortest = num(mask.shortestRiseMs ?? report.shortestRiseMs ?? mask.minRiseMs);
+  const shortest = num(mask.shortestRiseMs ?? report.shortestRiseMs);
   const text =
     pass === null
       ? 'Mask: no verdict in this report'
       : pass
         ? `PASS: within the spectral mask${shortest !== null ? ` (shortest rise that meets it: ${f(shortest, 1)} ms)` : ''}`
-        : `FAIL: ${violations.length} mask point${violations.length === 1 ? '' : 's'} exceeded${worst}${shortest !== null ? ` · a rise of ${f(shortest, 1)} ms or more would meet it` : ''}`;
+        : `FAIL: ${violations.length} point${violations.length === 1 ? '' : 's'} over the mask${worst}${shortest !== null ? `; ${f(shortest, 1)} ms rise meets it` : ''}`;
   return { lines, verdict: { pass, text } };
 }
 
