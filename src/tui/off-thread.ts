@@ -13,11 +13,20 @@ function workerUrl(): URL | null {
   return url.protocol === 'file:' && existsSync(fileURLToPath(url)) && import.meta.url.endsWith('.js') ? url : null;
 }
 
+const running = new Set<Worker>();
+
+/** Stops every worker still running (when the person leaves the app mid-job). */
+export async function stopWorkers(): Promise<void> {
+  await Promise.all([...running].map((w) => w.terminate()));
+  running.clear();
+}
+
 export function runOffThread(task: Task, onProgress: (fraction: number) => void): Promise<unknown> {
   const url = workerUrl();
   if (!url) return new Promise<void>((r) => setImmediate(r)).then(() => runTask(task, onProgress));
   return new Promise((resolvePromise, reject) => {
     const worker = new Worker(url, { workerData: task });
+    running.add(worker);
     let settled = false;
     worker.on('message', (m: { progress?: number; result?: unknown; error?: string; name?: string }) => {
       if (m.progress !== undefined) onProgress(m.progress);
@@ -36,6 +45,7 @@ export function runOffThread(task: Task, onProgress: (fraction: number) => void)
       reject(err);
     });
     worker.on('exit', (code) => {
+      running.delete(worker);
       if (!settled) reject(new Error(`the worker stopped (code ${code}) before it finished`));
     });
   });

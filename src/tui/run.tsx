@@ -7,6 +7,7 @@ import { render } from 'ink';
 import { App } from './App.js';
 import { realServices, type Services } from './services.js';
 import { colorAllowed } from './theme.js';
+import { stopWorkers } from './off-thread.js';
 
 export interface StartOptions {
   target?: string;
@@ -34,6 +35,7 @@ export async function startApp(options: StartOptions): Promise<number> {
   } finally {
     instance.cleanup();
     if (options.stdin.isTTY) options.stdin.setRawMode?.(false);
+    await stopWorkers();
     if (alt) options.stdout.write('\u001b[?1049l');
   }
   return 0;

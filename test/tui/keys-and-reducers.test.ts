@@ -6,6 +6,7 @@ import { applyTyped, computePlan, DEFAULT_SETTINGS, stepField } from '../../src/
 import { initialPlanState, planKeyToAction, planReducer, suggestedName } from '../../src/tui/plan/plan-state.js';
 import { initialReadState, readKeyToAction, readReducer } from '../../src/tui/read/read-state.js';
 import { editText } from '../../src/tui/widgets/text-edit.js';
+import { colorAllowed } from '../../src/tui/theme.js';
 
 /** Feeds key presses through the whole app's reducer, as the keyboard would. */
 function press(state: AppState, ...keys: (string | { input?: string; k: Parameters<typeof key>[0] })[]): AppState {
@@ -36,6 +37,15 @@ describe('frame key map', () => {
     const s = { ...initialFrame(), help: true };
     expect(frameKeyToAction('x', key(), s, false)).toEqual({ type: 'close-help' });
     expect(frameKeyToAction('q', key(), s, false)).toEqual({ type: 'quit' });
+  });
+});
+
+describe('colour', () => {
+  it('is used only on a terminal and never with NO_COLOR set (any value, https://no-color.org)', () => {
+    expect(colorAllowed({}, true)).toBe(true);
+    expect(colorAllowed({ NO_COLOR: '' }, true)).toBe(false);
+    expect(colorAllowed({ NO_COLOR: '1' }, true)).toBe(false);
+    expect(colorAllowed({}, false)).toBe(false);
   });
 });
 
