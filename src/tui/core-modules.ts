@@ -3,33 +3,10 @@
  * show a clear "not available yet" state instead of failing when a part of keyform is missing.
  * The specifiers are built at run time on purpose: the app must build and run without them.
  */
-import type { Interval } from '../core/timeline.js';
+// Types only (erased at run time): the modules themselves are loaded lazily below.
+import type { DecodedCharacter, DecodeResult } from '../core/receive/index.js';
 
-/** One decoded character, as the receiver reports it. */
-export interface DecodedCharacter {
-  text: string;
-  startMs: number;
-  endMs: number;
-  pattern: string;
-  /** 0…1 */
-  confidence: number;
-}
-
-/** What the receiver returns (the fields the app reads). */
-export interface DecodeResult {
-  text: string;
-  wpm: number;
-  farnsworthWpm: number | null;
-  unitMs: number;
-  totalMs: number;
-  marks: Interval[];
-  toneHz: number | null;
-  snrDb: number | null;
-  characters: DecodedCharacter[];
-  warnings: string[];
-  durationMs: number;
-  envelope?: { frameMs: number; values: ArrayLike<number>; threshold: ArrayLike<number> };
-}
+export type { DecodedCharacter, DecodeResult };
 
 export interface DecodeOptions {
   toneHz?: number;
