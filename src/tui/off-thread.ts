@@ -21,12 +21,22 @@ export async function stopWorkers(): Promise<void> {
   running.clear();
 }
 
-export function runOffThread(task: Task, onProgress: (fraction: number) => void): Promise<unknown> {
+/**
+ * Runs a task off the render path. `signal` stops it (the worker is terminated; the promise
+ * rejects with an AbortError) when its result is no longer wanted.
+ */
+export function runOffThread(task: Task, onProgress: (fraction: number) => void, signal?: AbortSignal): Promise<unknown> {
   const url = workerUrl();
   if (!url) return new Promise<void>((r) => setImmediate(r)).then(() => runTask(task, onProgress));
   return new Promise((resolvePromise, reject) => {
     const worker = new Worker(url, { workerData: task });
     running.add(worker);
+    signal?.addEventListener('abort', () => {
+      void worker.terminate();
+      const err = new Error('cancelled');
+      err.name = 'AbortError';
+      reject(err);
+    });
     let settled = false;
     worker.on('message', (m: { progress?: number; result?: unknown; error?: string; name?: string }) => {
       if (m.progress !== undefined) onProgress(m.progress);

@@ -5,6 +5,7 @@
  */
 import { existsSync, readdirSync, statSync } from 'node:fs';
 import { basename, dirname, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { InputError } from '../core/errors.js';
 import { EXPORT_FORMATS, type ExportFormat } from '../io/export.js';
 import { writeOutputFile } from '../io/files.js';
@@ -40,8 +41,8 @@ export interface Services {
   decode(path: string, onProgress: (fraction: number) => void): Promise<DecodedRecording>;
   /** Aligns a decoded recording against the expected message (alignTimelines). */
   compare(decoded: DecodedRecording, expectedText: string, wpm: number): Promise<Record<string, unknown>>;
-  /** Shape measurement, prediction or sweep, off the render path. */
-  shape(task: ShapeTask, onProgress: (fraction: number) => void): Promise<unknown>;
+  /** Shape measurement, prediction or sweep, off the render path; `signal` cancels it. */
+  shape(task: ShapeTask, onProgress: (fraction: number) => void, signal?: AbortSignal): Promise<unknown>;
   fileExists(path: string): boolean;
   /** Writes the plan in an export format; returns a one-line note of what was written. */
   exportPlan(settings: PlanSettings, format: ExportFormat, path: string, force: boolean): Promise<string>;
@@ -62,7 +63,9 @@ export function realServices(): Services {
     capabilities: probeCapabilities,
 
     async listRecordings(target) {
-      const where = resolve(target ?? 'recordings');
+      // By default ./recordings, else the demo recordings that ship with keyform.
+      const bundled = fileURLToPath(new URL('../../recordings', import.meta.url));
+      const where = resolve(target ?? (existsSync('recordings') ? 'recordings' : bundled));
       if (!existsSync(where)) {
         if (target !== undefined) throw new InputError(`${target}: no such file or folder`);
         return { dir: where, files: [] };
@@ -90,9 +93,9 @@ export function realServices(): Services {
       return align.alignTimelines(decoded.decode, planned.plan, {});
     },
 
-    async shape(task, onProgress) {
+    async shape(task, onProgress, signal) {
       if (!(await loadShape())) throw new NotAvailableError('the keying-shape analysis');
-      return runOffThread(task, onProgress);
+      return runOffThread(task, onProgress, signal);
     },
 
     fileExists: (path) => existsSync(path),

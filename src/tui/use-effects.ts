@@ -123,13 +123,14 @@ export function useAppEffects(state: AppState, dispatch: Dispatch<AppAction>, se
   useEffect(() => {
     if ('error' in computePlan({ message, wpm, riseMs, edge, toneHz, farnsworthWpm, weightPct })) return;
     let live = true;
+    const abort = new AbortController(); // a newer setting makes this prediction moot: stop its worker
     const timer = setTimeout(() => {
       dispatch({ type: 'plan', action: { type: 'prediction', prediction: { state: 'busy' } } });
       services
-        .shape({ kind: 'predict', wpm, farnsworthWpm, riseMs, edge, message, quick: true }, () => undefined)
+        .shape({ kind: 'predict', wpm, farnsworthWpm, riseMs, edge, message, quick: true }, () => undefined, abort.signal)
         .then((report) => live && dispatch({ type: 'plan', action: { type: 'prediction', prediction: predictionFromReport(report as Record<string, unknown>) } }))
         .catch((err: Error) => {
-          if (!live) return;
+          if (!live || err.name === 'AbortError') return;
           const prediction: Prediction = err.name === 'NotAvailableError' ? { state: 'unavailable' } : { state: 'error', message: err.message };
           dispatch({ type: 'plan', action: { type: 'prediction', prediction } });
         });
@@ -137,6 +138,7 @@ export function useAppEffects(state: AppState, dispatch: Dispatch<AppAction>, se
     return () => {
       live = false;
       clearTimeout(timer);
+      abort.abort();
     };
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [services, dispatch, wpm, riseMs, edge, message, farnsworthWpm, weightPct]);

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { planKeying } from '../../src/core/timing/plan.js';
-import { envelopeChart, histogramColumns, progressBar, spectrumPlot } from '../../src/tui/widgets/charts.js';
+import { envelopeChart, formatHz, histogramColumns, progressBar, spectrumPlot } from '../../src/tui/widgets/charts.js';
 import { keyingStrip, labelRow } from '../../src/tui/widgets/strip.js';
 import { comparisonLines, histogramLines, markedTextLines } from '../../src/tui/read/read-view.js';
 import { shapeSummary, sweepLines } from '../../src/tui/shape/shape-view.js';
@@ -42,6 +42,15 @@ describe('charts', () => {
     // Only the carrier (0 dBc) fills the top row; the columns between bins are interpolated in dB
     // (−20, −10 | −15 dBc beside it), drawn as ▁ below and ▄ above the row's midpoint (−15 dBc).
     expect(lines[0]!.slice(5)).toBe('   ▁▄█▁   ');
+  });
+});
+
+describe('frequencies', () => {
+  it('keeps three figures below 100 Hz, like an emission designator (ITU-R SM.1138: 91H7)', () => {
+    expect(formatHz(91.67)).toBe('91.7 Hz');
+    expect(formatHz(75)).toBe('75 Hz');
+    expect(formatHz(522.4)).toBe('522 Hz');
+    expect(formatHz(7002.7)).toBe('7.0 kHz');
   });
 });
 

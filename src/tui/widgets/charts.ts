@@ -154,6 +154,10 @@ export function spectrumPlot(
   return lines;
 }
 
+/** `7.0 kHz`, `522 Hz`, `91.7 Hz` (a decimal below 100 Hz, where designators have three figures). */
 export function formatHz(hz: number): string {
-  return Math.abs(hz) >= 1000 ? `${(hz / 1000).toFixed(Math.abs(hz) >= 10_000 ? 0 : 1)} kHz` : `${Math.round(hz)} Hz`;
+  const a = Math.abs(hz);
+  if (a >= 1000) return `${(hz / 1000).toFixed(a >= 10_000 ? 0 : 1)} kHz`;
+  if (a < 100 && Math.abs(hz - Math.round(hz)) >= 0.05) return `${hz.toFixed(1)} Hz`;
+  return `${Math.round(hz)} Hz`;
 }
