@@ -140,6 +140,39 @@ function timeCli(args: string[]): { wallS: number; cpuS: number | null; maxRssMB
   return { wallS, cpuS: m ? Number(m[1]) + Number(m[2]) : null, maxRssMB: m ? Number(m[3]) / 1024 : null, status: r.status, stderr: r.stderr };
 }
 
+/**
+ * Control for the batch speed-up: the same fixed CPU work (a plain arithmetic loop) split over 1 and
+ * over 2 worker threads. Its speed-up is what the machine can give right now; on an idle 2-core
+ * machine it is close to 2, on a shared one less.
+ */
+async function controlSpeedup(tasks = 4): Promise<{ oneS: number; twoS: number }> {
+  const { Worker } = await import('node:worker_threads');
+  const code = `const { parentPort } = require('node:worker_threads');
+    parentPort.on('message', (n) => { let x = 0; for (let i = 0; i < n; i++) x += Math.sqrt(i); parentPort.postMessage(x); });`;
+  const run = async (threads: number): Promise<number> => {
+    const workers = Array.from({ length: threads }, () => new Worker(code, { eval: true }));
+    const t0 = performance.now();
+    let next = 0;
+    await Promise.all(
+      workers.map(async (w) => {
+        while (next < tasks) {
+          next++;
+          await new Promise((resolve) => {
+            w.once('message', resolve);
+            w.postMessage(2e8);
+          });
+        }
+      }),
+    );
+    const s = (performance.now() - t0) / 1000;
+    await Promise.all(workers.map((w) => w.terminate()));
+    return s;
+  };
+  const oneS = Math.min(await run(1), await run(1));
+  const twoS = Math.min(await run(2), await run(2));
+  return { oneS, twoS };
+}
+
 // ---------------------------------------------------------------- main
 const minutes = arg('--minutes', 60);
 const batchFiles = arg('--batch-files', 6);
@@ -227,6 +260,8 @@ if (!existsSync(bin) || !existsSync(fileURLToPath(new URL('../dist/cli/batch-wor
     ['2', `${two.wallS.toFixed(2)} s`, `${(one.wallS / two.wallS).toFixed(2)}×`, cpu(two), rss(two)],
   ]);
   say('(CPU time covers all threads; a use near 100 % per worker means the machine was free for it)');
+  const control = await controlSpeedup();
+  say(`control: a plain CPU loop on 1 and 2 worker threads took ${control.oneS.toFixed(2)} s and ${control.twoS.toFixed(2)} s: ${(control.oneS / control.twoS).toFixed(2)}× (what the machine could give at the time)`);
   if (one.status !== 0 || two.status !== 0) say(`(batch exit codes ${one.status} and ${two.status}: ${(one.stderr + two.stderr).trim().split('\n').slice(-2).join(' / ')})`);
 }
 say(`load average ${load()} at the end (other processes on the machine slow the wall-clock figures)`);
