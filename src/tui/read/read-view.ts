@@ -92,18 +92,16 @@ export function histogramLines(report: Record<string, unknown>, width: number, r
   ];
 }
 
-/** Summary lines and the histogram of the timing report for the lower pane. */
+/** Summary lines (each under 52 columns) and the histogram of the timing report for the lower pane. */
 export function timingLines(report: Record<string, unknown>, width: number, histogramRows = 2): string[] {
   const gaps = (report.gapUnits ?? {}) as Record<string, unknown>;
-  const gap = (g: unknown): string => {
-    if (typeof g === 'number') return fmt(g, 2);
-    const o = (g ?? {}) as Record<string, unknown>;
-    return o.median === undefined ? '–' : `${fmt(o.median, 2)}±${fmt(o.spread, 2)}`;
-  };
+  const gap = (g: unknown): string => fmt(typeof g === 'number' ? g : ((g ?? {}) as Record<string, unknown>).median, 2);
+  const drift = num(report.driftWpm);
   return [
-    `speed ${fmt(report.wpm)} wpm (effective ${fmt(report.effectiveWpm)}) · unit ${fmt(report.unitMs)} ms · weight ${fmt(report.weightPct, 0)} % · dah/dit ${fmt(report.dahDitRatio, 2)}`,
-    `gaps [units]: element ${gap(gaps.element)} · letter ${gap(gaps.letter)} · word ${gap(gaps.word)}`,
-    `jitter ${fmt(report.jitterPct)} % of a unit · drift ${fmt(report.driftWpm)} wpm first to last word`,
+    `speed ${fmt(report.wpm)} wpm, effective ${fmt(report.effectiveWpm)} · unit ${fmt(report.unitMs)} ms`,
+    `weight ${fmt(report.weightPct, 0)} % · dah/dit ${fmt(report.dahDitRatio, 2)} · jitter ${fmt(report.jitterPct, 0)} % of a unit`,
+    `gaps ${gap(gaps.element)} / ${gap(gaps.letter)} / ${gap(gaps.word)} units (element/letter/word)`,
+    drift === null ? 'drift: too few words to tell' : `drift ${drift >= 0 ? '+' : ''}${drift.toFixed(1)} wpm from the first word to the last`,
     ...histogramLines(report, width, histogramRows),
   ];
 }
