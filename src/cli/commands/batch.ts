@@ -44,7 +44,14 @@ export function collectInputs(args: readonly string[]): string[] {
       files.push(arg);
       continue;
     }
-    const inside = readdirSync(arg, { withFileTypes: true })
+    let entries;
+    try {
+      entries = readdirSync(arg, { withFileTypes: true });
+    } catch (err) {
+      const code = (err as NodeJS.ErrnoException).code;
+      throw new InputError(`${arg}: cannot list this folder (${code === 'EACCES' ? 'permission denied' : (code ?? 'error')})`);
+    }
+    const inside = entries
       .filter((e) => !e.isDirectory() && AUDIO_EXTENSIONS.has(extname(e.name).toLowerCase()))
       .map((e) => join(arg, e.name))
       .sort();
