@@ -18,6 +18,8 @@ export interface TimingEstimate {
   noisePow: number;
   /** Number of marks the estimate rests on. */
   markCount: number;
+  /** How well the runs fall on the unit grid, −0.5 (not at all) … 1 (all of them). */
+  fit: number;
 }
 
 interface Run {
@@ -126,7 +128,7 @@ export function estimateTimingCandidates(re: Float64Array, im: Float64Array, n: 
     pi[i + 1] = pi[i]! + im[i]!;
   }
   const env = new Float64Array(n);
-  const scored: { score: number; u: number; w: number; runs: Run[] }[] = [];
+  const scored: { score: number; u: number; w: number; runs: Run[]; counted: number }[] = [];
   for (const u of CANDIDATE_UNITS_MS) {
     const w = Math.max(1, Math.round(u / frameMs));
     const m = n - w + 1;
@@ -140,6 +142,7 @@ export function estimateTimingCandidates(re: Float64Array, im: Float64Array, n: 
     if (!(high > 1.5 * low)) continue;
     let score = 0;
     let marks = 0;
+    let counted = 0;
     for (let i = 1; i < runs.length - 1; i++) {
       const run = runs[i]!;
       const r = (run.length * frameMs) / u;
@@ -147,19 +150,24 @@ export function estimateTimingCandidates(re: Float64Array, im: Float64Array, n: 
       else if (r >= 5) continue;
       const f = Math.max(fit(r, 1), fit(r, 3));
       score += f - 0.5 * (1 - f);
+      counted++;
     }
     if (marks < 2) continue;
-    scored.push({ score, u, w, runs });
+    scored.push({ score, u, w, runs, counted });
   }
-  return scored
-    .filter((c) => c.score > 0)
-    .sort((a, b) => b.score - a.score)
-    .slice(0, count)
-    .map((c) => refine(re, im, n, frameMs, c.u, c.w, c.runs));
+  // The best candidates overall, and the best of each octave of speed, so that a noisy pre-roll
+  // that favours one range still leaves the others to be tested.
+  const ranked = scored.filter((c) => c.score > 0).sort((a, b) => b.score - a.score);
+  const chosen = ranked.slice(0, Math.max(1, count - 4));
+  for (const [lo, hi] of [[0, 36], [36, 72], [72, 144], [144, Infinity]] as const) {
+    const best = ranked.find((c) => c.u >= lo && c.u < hi);
+    if (best && !chosen.includes(best)) chosen.push(best);
+  }
+  return chosen.slice(0, count).map((c) => ({ ...refine(re, im, n, frameMs, c.u, c.w, c.runs), fit: c.score / Math.max(1, c.counted) }));
 }
 
 /** Unit, gaps and levels from the runs of one candidate slicing. */
-function refine(re: Float64Array, im: Float64Array, n: number, frameMs: number, u: number, w: number, runs: Run[]): TimingEstimate {
+function refine(re: Float64Array, im: Float64Array, n: number, frameMs: number, u: number, w: number, runs: Run[]): Omit<TimingEstimate, 'fit'> {
   // Refine from the runs that fall near a class.
   let sDit = 0, nDit = 0, sDah = 0, nDah = 0, sGap = 0, nGap = 0;
   const longGaps: number[] = [];
@@ -200,7 +208,7 @@ function refine(re: Float64Array, im: Float64Array, n: number, frameMs: number, 
 /**
  * Splits gaps of two units or more into letter and word gaps. Farnsworth spacing stretches both in
  * the ratio 3 : 7 (QEX 1990), so two clusters about 2.3× apart are letter and word gaps; a single
- * cluster below 5 units is taken as letter gaps.
+ * cluster is taken as letter gaps.
  */
 export function splitLongGaps(gapsMs: number[], unitMs: number): { letterGapMs: number; wordGapMs: number } {
   if (gapsMs.length === 0) return { letterGapMs: 3 * unitMs, wordGapMs: 7 * unitMs };
@@ -224,7 +232,8 @@ export function splitLongGaps(gapsMs: number[], unitMs: number): { letterGapMs: 
     const word = Math.exp(logs.slice(bestSplit).reduce((a, b) => a + b, 0) / (logs.length - bestSplit));
     return { letterGapMs: letter, wordGapMs: Math.max(word, 1.6 * letter) };
   }
+  // One cluster: letter gaps, which outnumber word gaps several times in plain text (stretched,
+  // when longer than 5 units, by Farnsworth spacing).
   const mean = Math.exp(total / logs.length);
-  if (mean < 5 * unitMs) return { letterGapMs: mean, wordGapMs: Math.max(7 * unitMs, (7 / 3) * mean) };
-  return { letterGapMs: Math.max(3 * unitMs, (3 / 7) * mean), wordGapMs: mean };
+  return { letterGapMs: mean, wordGapMs: Math.max(7 * unitMs, (7 / 3) * mean) };
 }

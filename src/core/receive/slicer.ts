@@ -12,6 +12,8 @@ export interface SlicerOptions {
   signalPow: number;
   /** Starting noise power of one slot (|z|² units). */
   noisePow: number;
+  /** Mixer frames summed into one slot (the SNR cap is per frame, so slot lengths compare fairly). */
+  framesPerSlot: number;
 }
 
 /** Output of one slicer step. */
@@ -23,10 +25,8 @@ export interface SliceStep {
   threshold: number;
 }
 
-/** Highest per-slot SNR the levels may claim (30 dB), so a noiseless file does not divide by zero. */
-const MAX_SLOT_SNR = 1000;
-/** Relative speed at which marks well below the tracked level pull it down (fades). */
-const WEAK_ALPHA = 1;
+/** Highest SNR of one mixer frame the levels may claim (20 dB), so a noiseless file does not divide by zero. */
+const MAX_FRAME_SNR = 100;
 
 export class LevelSlicer {
   private readonly w: number;
@@ -45,14 +45,18 @@ export class LevelSlicer {
   private readonly alphaSignal: number;
   private readonly alphaNoise: number;
   private readonly alphaDecay: number;
+  private readonly maxSlotSnr: number;
+  private prevAmp = 0;
+  private prevPrevAmp = 0;
 
   constructor(options: SlicerOptions) {
+    this.maxSlotSnr = MAX_FRAME_SNR * Math.max(1, options.framesPerSlot);
     this.w = Math.max(1, Math.round(options.windowSlots));
     this.ringRe = new Float64Array(this.w);
     this.ringIm = new Float64Array(this.w);
-    this.noise = Math.max(options.noisePow, options.signalPow / MAX_SLOT_SNR, 1e-30);
+    this.noise = Math.max(options.noisePow, options.signalPow / this.maxSlotSnr, 1e-30);
     this.peakPow = this.w * options.signalPow + this.noise;
-    this.alphaSignal = Math.min(1, options.slotMs / 300);
+    this.alphaSignal = 0.35; // per envelope peak, i.e. per mark: follows a fade within a few marks
     this.alphaNoise = Math.min(1, options.slotMs / 1500);
     this.alphaDecay = Math.min(1, options.slotMs / 700);
   }
@@ -62,9 +66,9 @@ export class LevelSlicer {
     return Math.max(this.peakPow - this.noise, 0) / this.w;
   }
 
-  /** Noise power of one slot (|z|² units), never below 1/1000 of the carrier power. */
+  /** Noise power of one slot (|z|² units), never more than 20 dB per frame below the carrier. */
   get noisePow(): number {
-    return Math.max(this.noise, this.signalPow / MAX_SLOT_SNR, 1e-30);
+    return Math.max(this.noise, this.signalPow / this.maxSlotSnr, 1e-30);
   }
 
   /** Takes one slot value; returns the decision for the window ending at it. */
@@ -96,11 +100,14 @@ export class LevelSlicer {
     // Constant-false-alarm test against the noise alone: a Rayleigh amplitude with E[r²] = σ²
     // exceeds 2.63·σ with probability e^(−6.9) ≈ 1e-3 [analytic]. Marks that pass it feed the
     // signal level even when a fade has taken them below the slicing threshold.
-    const strong = amp > 2.63 * Math.sqrt(noise);
-    if (strong) {
-      const a = amp >= 0.6 * hi ? this.alphaSignal : WEAK_ALPHA * this.alphaSignal;
-      this.peakPow += a * (e - this.peakPow);
+    // Only the envelope's peaks (one per mark: the full overlap of a dot, a point of a dash's
+    // plateau) measure the level; the slopes of each mark would pull it down.
+    const prev = this.prevAmp;
+    if (prev > 2.63 * Math.sqrt(noise) && prev >= this.prevPrevAmp && prev > amp) {
+      this.peakPow += this.alphaSignal * (prev * prev - this.peakPow);
     }
+    this.prevPrevAmp = prev;
+    this.prevAmp = amp;
     if (this.on) {
       this.offSlots = 0;
     } else {

@@ -42,6 +42,10 @@ const FRAME_MS = 2.5;
 const SLOTS_PER_UNIT = 4;
 /** Candidate speeds tried on the pre-roll. */
 const CANDIDATES = 6;
+/** Grid fit (see TimingEstimate.fit) above which the pre-roll needs no likelihood test. */
+const TRUSTED_FIT = 0.6;
+const RANGE_LO = 0.65;
+const RANGE_HI = 1.8;
 /** Decisions are final this many units after the fact. */
 const LAG_UNITS = 40;
 /** Traceback period [slots]. */
@@ -90,6 +94,9 @@ export class StreamDecoder {
   private zRe = new Float64Array(0);
   private zIm = new Float64Array(0);
   private toneStartHz = 0;
+  /** Tone followed by the frequency-locked loop [Hz]. */
+  private toneHz = 0;
+  private replaying = false;
   private prevOn = false;
   private prevRe = 0;
   private prevIm = 0;
@@ -174,6 +181,7 @@ export class StreamDecoder {
       this.toneProminenceDb = found.prominenceDb;
     }
     this.toneStartHz = toneHz;
+    this.toneHz = toneHz;
     const spf = Math.max(1, Math.round((this.sampleRate * FRAME_MS) / 1000));
     this.frameMs = (spf * 1000) / this.sampleRate;
     const mixer = new Mixer(this.sampleRate, toneHz, spf);
@@ -199,7 +207,10 @@ export class StreamDecoder {
     this.phase = 'run';
     const copyRe = this.frameRe.slice(0, nFrames);
     const copyIm = this.frameIm.slice(0, nFrames);
+    // The pre-roll was mixed before any tracking: retuning now would not change these frames.
+    this.replaying = true;
     for (let i = 0; i < nFrames; i++) this.frame(copyRe[i]!, copyIm[i]!);
+    this.replaying = false;
     this.preroll = new Float32Array(0);
     this.preLen = 0;
   }
@@ -211,17 +222,21 @@ export class StreamDecoder {
    */
   private bestCandidate(candidates: TimingEstimate[], nFrames: number): TimingEstimate | null {
     if (candidates.length <= 1) return candidates[0] ?? null;
+    // Clean keying: the runs themselves are trustworthy, and the grid's best fit is the answer.
+    if (candidates[0]!.fit >= TRUSTED_FIT) return candidates[0]!;
     // A finer slot grid lets the search fit noise better, so the likelihood favours fast
     // candidates: only speeds near the best-fitting one compete.
     const first = candidates[0]!;
-    candidates = candidates.filter((c) => c === first || (c.unitMs >= 0.65 * first.unitMs && c.unitMs <= 1.8 * first.unitMs && c.dahMs / c.ditMs >= 2 && c.dahMs / c.ditMs <= 4.5));
+    candidates = candidates.filter((c) => c === first || (c.unitMs >= RANGE_LO * first.unitMs && c.unitMs <= RANGE_HI * first.unitMs && c.dahMs / c.ditMs >= 2 && c.dahMs / c.ditMs <= 4.5));
     let best: TimingEstimate | null = null;
     let bestScore = -Infinity;
     // Same levels for every candidate, so that the scores differ by timing alone.
     const { signalPow, noisePow } = candidates[0]!;
+    // And the same slot grid: a finer grid fits noise better and would favour fast candidates.
+    const commonK = Math.min(...candidates.map((c) => this.framesPerSlotFor(c.unitMs)));
     for (const candidate of candidates) {
       const est = { ...candidate, signalPow, noisePow };
-      const chain = this.makeChain(est);
+      const chain = this.makeChain(est, commonK, first.unitMs);
       const k = chain.framesPerSlot;
       const slots = Math.floor(nFrames / k);
       for (let s = 0; s < slots; s++) {
@@ -247,16 +262,21 @@ export class StreamDecoder {
   }
 
   /** Slot length, slicer, duration model and decoder for a timing estimate. */
-  private makeChain(est: TimingEstimate): { framesPerSlot: number; slotMs: number; slicer: LevelSlicer; decoder: SequenceDecoder; model: DurationModel; unitSlots: number } {
-    const framesPerSlot = Math.max(1, Math.round(est.unitMs / SLOTS_PER_UNIT / this.frameMs));
+  private framesPerSlotFor(unitMs: number): number {
+    return Math.max(1, Math.round(unitMs / SLOTS_PER_UNIT / this.frameMs));
+  }
+
+  private makeChain(est: TimingEstimate, framesPerSlotOverride?: number, slicerUnitMs?: number): { framesPerSlot: number; slotMs: number; slicer: LevelSlicer; decoder: SequenceDecoder; model: DurationModel; unitSlots: number } {
+    const framesPerSlot = framesPerSlotOverride ?? this.framesPerSlotFor(est.unitMs);
     const slotMs = framesPerSlot * this.frameMs;
     const k = framesPerSlot;
     const unitSlots = est.unitMs / slotMs;
     const slicer = new LevelSlicer({
-      windowSlots: Math.max(1, Math.round(unitSlots)),
+      windowSlots: Math.max(1, Math.round((slicerUnitMs ?? est.unitMs) / slotMs)),
       slotMs,
       signalPow: est.signalPow * k * k, // coherent sum of k frames
       noisePow: est.noisePow * k, // noise adds in power
+      framesPerSlot: k,
     });
     // Start from the standard ratios (ITU-R M.1677-1 §2) around the estimated unit, nudged by
     // what the pre-roll showed; stretched letter gaps (Farnsworth, QEX 1990) are taken as they are.
@@ -339,7 +359,7 @@ export class StreamDecoder {
 
   /** Frequency-locked loop: the phase step between consecutive key-down slots gives the tone offset. */
   private trackTone(zr: number, zi: number, on: boolean): void {
-    if (on && this.prevOn) {
+    if (on && this.prevOn && !this.replaying) {
       const cr = zr * this.prevRe + zi * this.prevIm;
       const ci = zi * this.prevRe - zr * this.prevIm;
       const a = Math.min(1, this.slotMs / 1500);
@@ -351,8 +371,9 @@ export class StreamDecoder {
         const dfHz = Math.atan2(this.fllIm, this.fllRe) / (2 * Math.PI * (this.slotMs / 1000));
         const gain = Math.min(1, this.slotMs / 6000);
         const mixer = this.mixer!;
-        const next = Math.max(this.toneStartHz - 80, Math.min(this.toneStartHz + 80, mixer.toneHz + gain * dfHz));
-        if (Math.abs(next - mixer.toneHz) > 0.02 && next > 0 && next < this.sampleRate / 2) mixer.setTone(next);
+        this.toneHz = Math.max(this.toneStartHz - 80, Math.min(this.toneStartHz + 80, this.toneHz + gain * dfHz));
+        // Retune (a table rebuild) only when the tracked tone has moved a little.
+        if (Math.abs(this.toneHz - mixer.toneHz) > 0.02 && this.toneHz > 0 && this.toneHz < this.sampleRate / 2) mixer.setTone(this.toneHz);
       }
     }
     this.prevOn = on;

@@ -94,6 +94,8 @@ export class SequenceDecoder {
   private readonly bestCharNode: Int16Array;
   private readonly charPrior: Float64Array;
   private readonly llr: Float64Array;
+  private blockSlots = 4;
+  private minWeakSlots = 3;
   private tables!: { dit: DurationTable; dah: DurationTable; egap: DurationTable; lgap: DurationTable; wgap: DurationTable };
   private model!: DurationModel;
   /** Index of the last slot processed (slot 0 is the start, before any data). */
@@ -141,6 +143,8 @@ export class SequenceDecoder {
   /** Replaces the expected segment lengths [slots]. */
   setModel(model: DurationModel): void {
     this.model = { ...model };
+    this.blockSlots = Math.max(1, Math.round(2 * (model.dit + model.elementGap)));
+    this.minWeakSlots = Math.max(2, Math.round(0.75 * model.dit));
     const cap = Math.floor(this.historySlots / 4);
     this.tables = {
       dit: durationTable(model.dit, SPREAD.dit, cap),
@@ -176,12 +180,7 @@ export class SequenceDecoder {
     const llr = this.llr;
     const rowBase = this.rowBase;
     for (let d = 1; d <= maxD; d++) rowBase[d] = ((t - d) & M) * S;
-    for (let d = 1; d <= maxMark; d++) {
-      const ai = (t - d) & M;
-      const dr = this.yRe[ti]! - this.yRe[ai]!;
-      const di = this.yIm[ti]! - this.yIm[ai]!;
-      llr[d] = markScore(2 * Math.sqrt(dr * dr + di * di), this.yQ[ti]! - this.yQ[ai]!);
-    }
+    for (let d = 1; d <= maxMark; d++) llr[d] = this.markLlr(t - d, t);
     const { parent, symbol } = this.trie;
     const n = this.n;
     const bpDur = this.bpDur;
@@ -308,12 +307,23 @@ export class SequenceDecoder {
 
   /** Log-likelihood ratio (mark against noise) of slots (a, b], both within the history. */
   markLlr(a: number, b: number): number {
-    const H = this.historySlots;
-    const ai = a % H;
-    const bi = b % H;
-    const dr = this.yRe[bi]! - this.yRe[ai]!;
-    const di = this.yIm[bi]! - this.yIm[ai]!;
-    return markScore(2 * Math.sqrt(dr * dr + di * di), this.yQ[bi]! - this.yQ[ai]!);
+    // Phase is held over blocks of four units: every dash is summed coherently (the full matched
+    // filter), while a very long mark from a drifting tone is not lost to one coherent sum.
+    const M = this.mask;
+    const block = this.blockSlots;
+    let sum = 0;
+    for (let s = a; s < b; s += block) {
+      const e = Math.min(b, s + block);
+      const si = s & M;
+      const ei = e & M;
+      const dr = this.yRe[ei]! - this.yRe[si]!;
+      const di = this.yIm[ei]! - this.yIm[si]!;
+      const x = 2 * Math.sqrt(dr * dr + di * di);
+      const q = this.yQ[ei]! - this.yQ[si]!;
+      // Only marks of a plausible length may be weaker than the tracked level: a click is short.
+      sum += b - a >= this.minWeakSlots ? markScore(x, q) : lnI0(x) - q;
+    }
+    return sum;
   }
 
   /**
