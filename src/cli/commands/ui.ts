@@ -12,7 +12,7 @@ export async function runUi(ctx: CommandContext, target: string | undefined): Pr
     throw new InputError('the interactive app needs a terminal; for scripts use encode, decode, timing or shape (see keyform --help)');
   }
   if (target !== undefined && !existsSync(target)) throw new InputError(`${target}: no such file or folder`);
-  const { startApp } = await import('../../tui/run.js');
+  const { startApp } = await loadAppOnTerminal();
   return startApp({
     target,
     stdout: ctx.io.stdout as NodeJS.WriteStream,
@@ -20,6 +20,24 @@ export async function runUi(ctx: CommandContext, target: string | undefined): Pr
     stderr: ctx.io.stderr as NodeJS.WriteStream,
     env: ctx.io.env,
   });
+}
+
+/**
+ * Loads the app. Ink draws only a final frame when it sees a CI variable (CI, CONTINUOUS_INTEGRATION)
+ * at load time; here stdin and stdout are a terminal, so it must draw every frame: the variables are
+ * hidden from it while it loads, then put back.
+ */
+async function loadAppOnTerminal(): Promise<typeof import('../../tui/run.js')> {
+  const names = ['CI', 'CONTINUOUS_INTEGRATION'] as const;
+  const saved = names.map((n) => process.env[n]);
+  for (const n of names) delete process.env[n];
+  try {
+    return await import('../../tui/run.js');
+  } finally {
+    names.forEach((n, i) => {
+      if (saved[i] !== undefined) process.env[n] = saved[i];
+    });
+  }
 }
 
 export function registerUi(program: Command, ctx: CommandContext): void {

@@ -95,7 +95,7 @@ export function ReadScreen({ state, width, height, theme }: { state: ReadState; 
     );
     const textRows = markedTextLines(d.text === '' ? '(nothing decoded)' : d.text, d.characters, inner).slice(0, Math.max(1, Math.floor((height - 14) / 2)));
     for (const row of textRows) {
-      push(<Text bold color={colorFor(theme, 'good')}>{` ${row.text}`}</Text>);
+      push(<Text bold>{` ${row.text}`}</Text>);
       if (row.marks.trim() !== '') push(<Text color={colorFor(theme, 'warn')}>{` ${row.marks}`}</Text>);
     }
     push(
