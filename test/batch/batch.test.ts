@@ -1,4 +1,4 @@
-import { spawn } from 'node:child_process';
+import { spawn, spawnSync } from 'node:child_process';
 import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -50,9 +50,14 @@ beforeAll(() => {
   for (const [name, text] of Object.entries(messages)) recording(join(folder, name), text, 22);
   writeFileSync(join(folder, 'broken.wav'), 'this is a log file, not audio\n');
   writeFileSync(join(folder, 'readme.txt'), 'not picked up: not a .wav');
-  // Batch runs its workers from the compiled files in dist/ (npm test builds first).
-  expect(existsSync(join(import.meta.dirname, '../../dist/cli/batch-worker.js'))).toBe(true);
-});
+  // Batch runs its workers from the compiled files in dist/ (npm test builds first; build here if it did not).
+  const worker = join(import.meta.dirname, '../../dist/cli/batch-worker.js');
+  if (!existsSync(worker)) {
+    const tsc = join(import.meta.dirname, '../../node_modules/typescript/bin/tsc');
+    spawnSync(process.execPath, [tsc, '-p', join(import.meta.dirname, '../../tsconfig.json')], { stdio: 'ignore' });
+  }
+  expect(existsSync(worker)).toBe(true);
+}, 180_000);
 
 describe('keyform batch', () => {
   it('gives one row per .wav file; the broken file is a row with its one-line error and the others decode', async () => {
