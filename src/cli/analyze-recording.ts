@@ -1,7 +1,8 @@
 /**
  * One recording in, one report row out: decode (receiver), timing statistics and keying shape,
  * read through openAudio so long files stream with bounded memory. Used by `batch` (in worker
- * threads) and by the throughput benchmark. Never throws for a bad file: the error goes in the row.
+ * threads); `decodeAudioSource` and `followText` also serve `decode -` on a pipe. Never throws for a
+ * bad file: the error goes in the row.
  */
 import { InputError } from '../core/errors.js';
 import { measureShape } from '../core/measure/shape.js';
@@ -60,10 +61,11 @@ export interface AnalyzeOptions extends Pick<OpenAudioOptions, 'raw' | 'rate' | 
 /** Seconds of audio buffered to choose the channel of a multichannel recording. */
 const PICK_SECONDS = 10;
 
-function emptyRow(file: string): BatchRow {
+/** A row with nothing measured: verdict `error` with the given one-line reason. */
+export function errorRow(file: string, error: string | null): BatchRow {
   return {
     file, durationS: null, text: '', wpm: null, toneHz: null, snrDb: null, riseMs: null, occupiedBandwidthHz: null,
-    jitterPct: null, verdict: 'error', error: null, warnings: [],
+    jitterPct: null, verdict: 'error', error, warnings: [],
   };
 }
 
@@ -199,7 +201,7 @@ export function followText(write: (s: string) => void, lineWidth = 72): { write:
  * @example (await analyzeRecording('recordings/beacon-after-fix.wav')).text //=> 'VVV Q7ZKT/B …'
  */
 export async function analyzeRecording(path: string, options: AnalyzeOptions = {}): Promise<BatchRow> {
-  const row = emptyRow(path);
+  const row = errorRow(path, null);
   try {
     await analyzeInto(row, path, options);
     row.verdict = row.text.trim() === '' ? 'no signal' : row.verdict === 'mask fail' ? 'mask fail' : 'ok';

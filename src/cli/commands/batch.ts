@@ -5,7 +5,7 @@ import { fileURLToPath } from 'node:url';
 import type { Command } from 'commander';
 import { InputError } from '../../core/errors.js';
 import { formatJson } from '../../io/json.js';
-import { BATCH_COLUMNS, errorLine, type BatchRow } from '../analyze-recording.js';
+import { BATCH_COLUMNS, errorLine, errorRow, type BatchRow } from '../analyze-recording.js';
 import type { BatchTask } from '../batch-worker.js';
 import type { CommandContext } from '../io.js';
 import { numberIn } from '../options.js';
@@ -299,10 +299,7 @@ async function runBatch(inputs: string[], o: BatchCliOptions, ctx: CommandContex
       files.map((path) =>
         pool.run({ path, options }, { signal: abort.signal }).then(record, (err: unknown) => {
           if (interrupted) return; // aborted: not a row
-          record({
-            file: path, durationS: null, text: '', wpm: null, toneHz: null, snrDb: null, riseMs: null, occupiedBandwidthHz: null,
-            jitterPct: null, verdict: 'error', error: errorLine(err), warnings: [],
-          });
+          record(errorRow(path, errorLine(err)));
         }),
       ),
     );
