@@ -76,16 +76,3 @@ export const loadTiming = (): Promise<TimingModule | null> => loadOptional('../c
 export const loadAlign = (): Promise<AlignModule | null> => loadOptional('../core/measure/align.js', (m) => fn(m, 'alignTimelines'));
 export const loadShape = (): Promise<ShapeModule | null> =>
   loadOptional('../core/measure/shape.js', (m) => fn(m, 'measureShape') && fn(m, 'predictShape'));
-
-/** Which parts of the core are present. */
-export interface Capabilities {
-  decode: boolean;
-  timing: boolean;
-  align: boolean;
-  shape: boolean;
-}
-
-export async function probeCapabilities(): Promise<Capabilities> {
-  const [r, t, a, s] = await Promise.all([loadReceive(), loadTiming(), loadAlign(), loadShape()]);
-  return { decode: r !== null, timing: t !== null, align: a !== null, shape: s !== null };
-}

@@ -12,7 +12,7 @@ import { writeOutputFile } from '../io/files.js';
 import { readWavFile } from '../io/wav-read.js';
 import { renderPlan, type EncodeCliOptions } from '../cli/commands/encode.js';
 import type { CommandContext } from '../cli/io.js';
-import { loadAlign, loadReceive, loadShape, NotAvailableError, probeCapabilities, type Capabilities } from './core-modules.js';
+import { loadAlign, loadReceive, loadShape, NotAvailableError } from './core-modules.js';
 import { computePlan, type PlanSettings } from './plan/plan-model.js';
 import type { DecodedRecording, ShapeTask } from './tasks.js';
 import { runOffThread } from './off-thread.js';
@@ -35,7 +35,6 @@ export interface RecordingList {
 }
 
 export interface Services {
-  capabilities(): Promise<Capabilities>;
   listRecordings(target: string | undefined): Promise<RecordingList>;
   /** Decodes a recording without blocking the keyboard, reporting progress 0…1. */
   decode(path: string, onProgress: (fraction: number) => void): Promise<DecodedRecording>;
@@ -60,8 +59,6 @@ export function encodeOptionsFor(s: PlanSettings): EncodeCliOptions {
 
 export function realServices(): Services {
   return {
-    capabilities: probeCapabilities,
-
     async listRecordings(target) {
       // By default ./recordings, else the demo recordings that ship with keyform.
       const bundled = fileURLToPath(new URL('../../recordings', import.meta.url));

@@ -48,7 +48,6 @@ function fakeServices(over: Partial<Services> = {}, exists = false): Fake {
   return {
     exports,
     release: () => release(),
-    capabilities: async () => ({ decode: true, timing: false, align: false, shape: false }),
     listRecordings: async () => ({
       dir: '/demo',
       files: [

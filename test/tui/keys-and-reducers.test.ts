@@ -109,6 +109,16 @@ describe('Plan workspace model', () => {
     expect(s.status).toEqual({ tone: 'good', text: 'wrote it' });
   });
 
+  it('scrolls the strip by pages but not past the end of the message', () => {
+    let s = planReducer(initialPlanState({ ...DEFAULT_SETTINGS, message: 'PARIS', wpm: 20 }), { type: 'scroll', direction: 1, pageMs: 1000 });
+    expect(s.scrollMs).toBe(1000);
+    for (let i = 0; i < 5; i++) s = planReducer(s, { type: 'scroll', direction: 1, pageMs: 1000 });
+    // PARIS without its word gap is 43 units of 60 ms at 20 wpm (PARIS standard word = 50 units): 2580 ms.
+    expect(s.scrollMs).toBe(2580 - 1000);
+    s = planReducer(s, { type: 'scroll', direction: -1, pageMs: 5000 });
+    expect(s.scrollMs).toBe(0);
+  });
+
   it('names exports after the message', () => {
     expect(suggestedName('VVV Q7ZKT/B JO01 <AR>', 'c')).toBe('vvv-q7zkt-b-jo01.h');
   });

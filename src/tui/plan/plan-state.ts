@@ -2,7 +2,7 @@ import { EXPORT_FORMATS, type ExportFormat } from '../../io/export.js';
 import type { KeyHelp, KeyInfo } from '../keys.js';
 import type { Tone } from '../theme.js';
 import { editText } from '../widgets/text-edit.js';
-import { applyTyped, DEFAULT_SETTINGS, fieldText, PLAN_FIELDS, stepField, type PlanField, type PlanSettings } from './plan-model.js';
+import { applyTyped, computePlan, DEFAULT_SETTINGS, fieldText, PLAN_FIELDS, stepField, type PlanField, type PlanSettings } from './plan-model.js';
 
 /** What the predicted keying shape says about the plan's bandwidth (from the core's predictShape). */
 export type Prediction =
@@ -108,7 +108,13 @@ export function planReducer(state: PlanState, action: PlanAction): PlanState {
       return { ...state, settings: r.settings, editing: null, scrollMs: state.field === 'message' ? 0 : state.scrollMs, status: null };
     }
     case 'scroll':
-      return { ...state, scrollMs: Math.max(0, state.scrollMs + action.direction * action.pageMs) };
+    {
+      // Never past the end: the last page still shows the end of the message.
+      const planned = computePlan(state.settings);
+      const endMs = 'plan' in planned ? planned.plan.totalMs : 0;
+      const scrollMs = Math.min(Math.max(0, endMs - action.pageMs), Math.max(0, state.scrollMs + action.direction * action.pageMs));
+      return { ...state, scrollMs };
+    }
     case 'zoom':
       return { ...state, zoom: state.zoom === 'detail' ? 'whole' : 'detail', scrollMs: 0 };
     case 'export-open':
