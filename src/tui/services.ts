@@ -84,7 +84,7 @@ export function realServices(): Services {
     async compare(decoded, expectedText, wpm) {
       const align = await loadAlign();
       if (!align) throw new NotAvailableError('the comparison with an expected message');
-      const planned = computePlan({ message: expectedText, wpm, farnsworthWpm: null, weightPct: 50, riseMs: 5, edge: 'raised-cosine', toneHz: 700 });
+      const planned = computePlan({ message: expectedText, wpm: Math.min(100, Math.max(1, wpm)), farnsworthWpm: null, weightPct: 50, riseMs: 5, edge: 'raised-cosine', toneHz: 700 });
       if ('error' in planned) throw new InputError(planned.error);
       await yieldToInput();
       return align.alignTimelines(decoded.decode, planned.plan, {});
