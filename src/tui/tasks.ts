@@ -22,6 +22,8 @@ export interface DecodedRecording {
   decode: DecodeResult;
   /** measureTiming's report of the observed timeline, or null when not available. */
   timing: Record<string, unknown> | null;
+  /** Why there is no timing report, when there is none. */
+  timingNote?: string;
 }
 
 const yieldToInput = (): Promise<void> => new Promise((r) => setImmediate(r));
@@ -55,15 +57,18 @@ export async function decodeRecording(path: string, onProgress: (fraction: numbe
   }
   const timingModule = await loadTiming();
   let timing: Record<string, unknown> | null = null;
-  if (timingModule && decode.marks.length > 0) {
+  let timingNote: string | undefined;
+  if (!timingModule) timingNote = 'the timing report is not available yet in this build';
+  else if (decode.marks.length === 0) timingNote = 'no marks heard, so no timing to report';
+  else {
     try {
       timing = timingModule.measureTiming(decode, decode.unitMs > 0 ? { unitMsHint: decode.unitMs } : {});
-    } catch {
-      timing = null; // too few marks to measure: the pane says so
+    } catch (err) {
+      timingNote = `no timing report: ${(err as Error).message}`;
     }
   }
   onProgress(1);
-  return { path, channelNote, decode, timing };
+  return { path, channelNote, decode, timing, ...(timingNote ? { timingNote } : {}) };
 }
 
 /** Runs one shape job with the core's shape functions. */

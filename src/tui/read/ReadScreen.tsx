@@ -146,7 +146,7 @@ export function ReadScreen({ state, width, height, theme }: { state: ReadState; 
   } else if (r) {
     pane = r.timing
       ? { title: 'Timing of what was heard', lines: timingLines(r.timing, inner - 2, height >= 30 ? 3 : 2) }
-      : { title: 'Timing of what was heard', lines: ['timing report: not available yet in this build'] };
+      : { title: 'Timing of what was heard', lines: [r.timingNote ?? 'no timing report'] };
   }
 
   return (
