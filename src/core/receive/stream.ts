@@ -40,6 +40,9 @@ export const PREROLL_MS = 6000;
 const FRAME_MS = 2.5;
 /** Slots per unit at the starting speed. */
 const SLOTS_PER_UNIT = 4;
+/** Bounds of the tracked timing spread (standard deviation of ln duration). */
+const SPREAD_MIN = 0.15;
+const SPREAD_MAX = 0.4;
 /** Candidate speeds tried on the pre-roll. */
 const CANDIDATES = 6;
 /** Grid fit (see TimingEstimate.fit) above which the pre-roll needs no likelihood test. */
@@ -445,23 +448,35 @@ export class StreamDecoder {
     }
     const m = this.model!;
     const a = 0.12;
+    // Timing spread (jitter) of each class, tracked as the mean square of ln(d / mean): machine
+    // keying earns tight priors, hand keying wide ones.
+    const sp = (m.spread ??= { dit: 0.3, dah: 0.3, elementGap: 0.35, letterGap: 0.35, wordGap: 0.35 });
+    const spreadOf = (key: 'dit' | 'dah' | 'elementGap' | 'letterGap', mean: number): void => {
+      const dev = Math.log(Math.max(d, 0.5) / mean);
+      const v = sp[key] * sp[key] + 0.05 * (dev * dev + 1 / (12 * mean * mean) - sp[key] * sp[key]);
+      sp[key] = Math.min(SPREAD_MAX, Math.max(SPREAD_MIN, Math.sqrt(Math.max(0, v))));
+    };
     switch (s.kind) {
       case 'mark':
         if (TRIE.symbol[s.node] === 1) {
+          spreadOf('dah', m.dah);
           m.dah += a * (d - m.dah);
           st.unitSum += d / 3;
         } else {
+          spreadOf('dit', m.dit);
           m.dit += a * (d - m.dit);
           st.unitSum += d;
         }
         st.unitCount++;
         break;
       case 'element-gap':
+        spreadOf('elementGap', m.elementGap);
         m.elementGap += a * (d - m.elementGap);
         st.unitSum += d;
         st.unitCount++;
         break;
       case 'letter-gap':
+        spreadOf('letterGap', m.letterGap);
         m.letterGap += a * (d - m.letterGap);
         st.letterGapSum += d;
         st.letterGapCount++;
@@ -556,7 +571,7 @@ export function constrainModel(m: DurationModel): DurationModel {
   m.elementGap = clamp(m.elementGap, 0.5 * unit, 1.8 * unit);
   m.letterGap = Math.max(m.letterGap, 2.2 * unit, 1.8 * m.elementGap);
   m.wordGap = Math.max(m.wordGap, 1.6 * m.letterGap, 5 * unit);
-  for (const key of Object.keys(m) as (keyof DurationModel)[]) m[key] = Math.max(1, m[key]);
+  for (const key of ['dit', 'dah', 'elementGap', 'letterGap', 'wordGap'] as const) m[key] = Math.max(1, m[key]);
   return m;
 }
 

@@ -8,6 +8,8 @@ export interface DurationModel {
   elementGap: number;
   letterGap: number;
   wordGap: number;
+  /** Spread of each class on a log scale (standard deviation of ln(duration)); defaults when omitted. */
+  spread?: { dit: number; dah: number; elementGap: number; letterGap: number; wordGap: number };
 }
 
 export type SegmentKind = 'mark' | 'element-gap' | 'letter-gap' | 'word-gap' | 'idle';
@@ -137,20 +139,21 @@ export class SequenceDecoder {
 
   /** The duration model in use [slots]. */
   get durations(): DurationModel {
-    return { ...this.model };
+    return { ...this.model, spread: this.model.spread ? { ...this.model.spread } : undefined };
   }
 
   /** Replaces the expected segment lengths [slots]. */
   setModel(model: DurationModel): void {
-    this.model = { ...model };
+    this.model = { ...model, spread: model.spread ? { ...model.spread } : undefined };
     this.blockSlots = Math.max(1, Math.round(2 * (model.dit + model.elementGap)));
     this.minWeakSlots = Math.max(2, Math.round(0.75 * model.dit));
     const cap = Math.floor(this.historySlots / 4);
+    const spread = model.spread ?? SPREAD;
     this.tables = {
-      dit: durationTable(model.dit, SPREAD.dit, cap),
-      dah: durationTable(model.dah, SPREAD.dah, cap),
-      egap: durationTable(model.elementGap, SPREAD.elementGap, cap),
-      lgap: durationTable(model.letterGap, SPREAD.letterGap, cap),
+      dit: durationTable(model.dit, spread.dit, cap),
+      dah: durationTable(model.dah, spread.dah, cap),
+      egap: durationTable(model.elementGap, spread.elementGap, cap),
+      lgap: durationTable(model.letterGap, spread.letterGap, cap),
       wgap: durationTable(model.wordGap, SPREAD.wordGap, cap),
     };
   }
