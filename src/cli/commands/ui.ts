@@ -46,14 +46,16 @@ export function registerUi(program: Command, ctx: CommandContext): void {
     .summary('open the interactive app (plan, read back, shape)')
     .description(
       'Open the interactive app in this terminal: plan a message, read back a recording, check the keying shape.\n' +
-        'TARGET is a WAV recording (opened at once) or a folder of them; by default ./recordings.\n' +
+        'TARGET is a WAV recording (opened at once) or a folder of them; by default ./recordings,\n' +
+        'or the demo recordings bundled with keyform when there is no such folder.\n' +
+        'Every figure it shows is also available from encode, decode, timing and shape (with --json).\n' +
         'Keys are shown in the footer; ? lists them all; q or Ctrl-C leaves.',
     )
     .addHelpText(
       'after',
       `
 Examples:
-  keyform ui                                    the app on ./recordings
+  keyform ui                                    the app on ./recordings (or the bundled ones)
   keyform ui recordings/beacon-after-fix.wav    open a recording in Read back
 
 Transmitting needs a licence and must follow your local regulations; isolate keying lines.`,
