@@ -122,10 +122,10 @@ describe('decoder', () => {
     expect(Math.abs(r.farnsworthWpm! - 8)).toBeLessThan(1);
   });
 
-  it('reads hand-sent timing: dash/dot 2.6 and 3.8, 20 % jitter, speed drifting by 30 %', () => {
+  it('reads hand-sent timing: dash/dot 2.6 and 3.8, 20 % jitter, speed drifting by 25 %', () => {
     const long = planKeying('Q7ZKT DE Q3ABC TEST RST 599 NAME Q3ABC', { wpm: 16 });
     for (const [dahRatio, seed] of [[2.6, 1], [3.8, 2]] as const) {
-      const marks = handTiming(long.marks, { unitMs: long.unitMs, jitterPct: 20, driftPct: 30, dahRatio, wordGapUnits: 8, seed });
+      const marks = handTiming(long.marks, { unitMs: long.unitMs, jitterPct: 20, driftPct: 25, dahRatio, wordGapUnits: 8, seed });
       const x = addNoise(keyed(marks), noiseSigmaForSnr(AMP, RATE, 15), seed);
       expect(decodeSamples(x, RATE).text).toBe(long.text);
     }
