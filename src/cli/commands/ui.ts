@@ -45,11 +45,14 @@ export function registerUi(program: Command, ctx: CommandContext): void {
     .command('ui [target]')
     .summary('open the interactive app (plan, read back, shape)')
     .description(
-      'Open the interactive app in this terminal: plan a message, read back a recording, check the keying shape.\n' +
-        'TARGET is a WAV recording (opened at once) or a folder of them; by default ./recordings,\n' +
-        'or the demo recordings bundled with keyform when there is no such folder.\n' +
-        'Every figure it shows is also available from encode, decode, timing and shape (with --json).\n' +
-        'Keys are shown in the footer; ? lists them all; q or Ctrl-C leaves.',
+      [
+        'Open the interactive app in this terminal: plan a message, read back a',
+        'recording, check the keying shape. TARGET is a WAV recording (opened at once)',
+        'or a folder of them; by default ./recordings, or the demo recordings bundled',
+        'with keyform when there is no such folder. Every figure the app shows is also',
+        'available from encode, decode, timing and shape (with --json). Keys are shown',
+        'in the footer; ? lists them all; q or Ctrl-C leaves.',
+      ].join('\n'),
     )
     .addHelpText(
       'after',
