@@ -2,7 +2,7 @@ import React, { useEffect, useMemo, useReducer, useState } from 'react';
 import { basename } from 'node:path';
 import { Box, Text, useApp, useInput, useStdout } from 'ink';
 import { FRAME_KEYS, type Workspace } from './app-state.js';
-import { appReducer, initialAppState, shapeRecording } from './app-model.js';
+import { appReducer, initialAppState, shapeRecording, type AppState } from './app-model.js';
 import type { KeyInfo } from './keys.js';
 import type { Services } from './services.js';
 import type { Theme } from './theme.js';
@@ -84,7 +84,7 @@ export function App({ services, theme, target, start, size: fixed }: AppProps) {
   const rec = shapeRecording(state);
   return (
     <Box flexDirection="column" width={width} height={height}>
-      <Header workspace={frame.workspace} width={width} theme={theme} />
+      <Header workspace={frame.workspace} width={width} theme={theme} activity={backgroundActivity(state)} />
       <Box height={bodyHeight} flexDirection="column" overflow="hidden">
         {frame.workspace === 'plan' ? (
           <PlanScreen state={state.plan} planned={planned} width={width} height={bodyHeight} theme={theme} />
@@ -99,7 +99,11 @@ export function App({ services, theme, target, start, size: fixed }: AppProps) {
   );
 }
 
-/** Shown for a moment while the app starts. */
-export function Starting() {
-  return <Text>keyform: starting…</Text>;
+/** A slow job running in a workspace that is not open, e.g. `… decoding 40 %`, for the header. */
+export function backgroundActivity(state: AppState): string | null {
+  const pct = (f: number): string => `${Math.round(f * 100)} %`;
+  if (state.read.decoding && state.frame.workspace !== 'read') return `… decoding ${pct(state.read.decoding.progress)}`;
+  const job = state.shape.job;
+  if (job && state.frame.workspace !== 'shape') return `… ${job.what === 'measure' ? 'measuring' : job.what === 'predict' ? 'predicting' : 'sweeping'} ${pct(job.progress)}`;
+  return null;
 }

@@ -158,8 +158,8 @@ describe('Read back workspace', () => {
     stdin.write(DOWN);
     stdin.write(ENTER);
     await waitFor(lastFrame, (x) => x.includes('Decoding q3abc-contact.wav') && x.includes('50 %'), 'the progress bar');
-    stdin.write('1'); // keys stay live while decoding
-    await waitFor(lastFrame, (x) => x.includes('[1 Plan]'), 'Plan during the decode');
+    stdin.write('1'); // keys stay live while decoding, and the header says what runs behind
+    await waitFor(lastFrame, (x) => x.includes('[1 Plan]') && x.includes('… decoding 50 %'), 'Plan during the decode');
     stdin.write('2');
     services.release();
     const f = await waitFor(lastFrame, (x) => x.includes('Q3ABC DE Q9XYZ'), 'the decoded text');

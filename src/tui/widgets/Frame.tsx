@@ -5,9 +5,9 @@ import type { KeyHelp } from '../keys.js';
 import { colorFor, type Theme } from '../theme.js';
 
 /** Top line: the name, the three workspaces with their keys (the open one in brackets), help and quit. */
-export function Header({ workspace, width, theme }: { workspace: Workspace; width: number; theme: Theme }) {
+export function Header({ workspace, width, theme, activity }: { workspace: Workspace; width: number; theme: Theme; activity?: string | null }) {
   const tabs = WORKSPACES.map((w, i) => ({ w, label: w === workspace ? `[${i + 1} ${WORKSPACE_NAMES[w]}]` : ` ${i + 1} ${WORKSPACE_NAMES[w]} ` }));
-  const right = '? help  q quit';
+  const right = `${activity ? `${activity}  ` : ''}? help  q quit`;
   const used = 9 + tabs.reduce((n, t) => n + t.label.length + 1, 0);
   return (
     <Box width={width}>
