@@ -29,8 +29,8 @@ const NEG = -1e300;
 const SPREAD = { dit: 0.3, dah: 0.3, elementGap: 0.35, letterGap: 0.35, wordGap: 0.35 } as const;
 /** Log prior of the gap after an element (roughly how often each follows a mark in plain text). */
 const GAP_PRIOR = { elementGap: Math.log(0.6), letterGap: Math.log(0.3), wordGap: Math.log(0.1) };
-/** Log prior cost of each 6 dB step below the tracked amplitude. */
-const WEAKER_PRIOR = -2;
+/** Log prior cost of a mark 6 dB below the tracked amplitude. */
+const WEAKER_PRIOR = -3;
 /** Paths more than this far (natural log) below the best one are dropped (beam search). */
 const BEAM = 40;
 /** Log penalty of decoding a run that is not a known character. */
@@ -40,15 +40,14 @@ const CHAR_PRIOR = 0;
 
 /**
  * Mark score: the log-likelihood ratio ln I0(x) − q of a tone of the tracked amplitude, or of a
- * tone 6 or 12 dB weaker (with a prior cost), whichever fits best, so that marks stay visible
- * while the amplitude tracker catches up with a fade.
+ * tone 6 dB weaker (with a prior cost), whichever fits best, so that marks stay visible while the
+ * amplitude tracker catches up with a fade.
  * @param x - 2·|Σ y| over the segment. @param q - Σ A²/σ² over the segment.
  */
 export function markScore(x: number, q: number): number {
   const full = lnI0(x) - q;
   const half = lnI0(0.5 * x) - 0.25 * q + WEAKER_PRIOR;
-  const quarter = lnI0(0.25 * x) - 0.0625 * q + 2 * WEAKER_PRIOR;
-  return Math.max(full, half, quarter);
+  return Math.max(full, half);
 }
 
 interface DurationTable {
