@@ -1,6 +1,6 @@
-import React, { useEffect, useMemo, useReducer, useState } from 'react';
+import { useEffect, useMemo, useReducer, useState } from 'react';
 import { basename } from 'node:path';
-import { Box, Text, useApp, useInput, useStdout } from 'ink';
+import { Box, useApp, useInput, useStdout } from 'ink';
 import { FRAME_KEYS, type Workspace } from './app-state.js';
 import { appReducer, initialAppState, shapeRecording, type AppState } from './app-model.js';
 import type { KeyInfo } from './keys.js';

@@ -2,7 +2,6 @@
  * Starts the interactive app on the given streams and resolves with the exit code when the person
  * leaves. Loaded lazily by `keyform ui`, so scripted runs never load React or Ink.
  */
-import React from 'react';
 import { render } from 'ink';
 import { App } from './App.js';
 import { realServices, type Services } from './services.js';

@@ -9,7 +9,6 @@ import { fileURLToPath } from 'node:url';
 import { InputError } from '../core/errors.js';
 import { EXPORT_FORMATS, type ExportFormat } from '../io/export.js';
 import { writeOutputFile } from '../io/files.js';
-import { readWavFile } from '../io/wav-read.js';
 import { renderPlan, type EncodeCliOptions } from '../cli/commands/encode.js';
 import type { CommandContext } from '../cli/io.js';
 import { loadAlign, loadReceive, loadShape, NotAvailableError } from './core-modules.js';

@@ -1,4 +1,3 @@
-import React from 'react';
 import { Box, Text } from 'ink';
 import type { KeyingPlan } from '../../core/timing/plan.js';
 import { SAFETY_NOTE } from '../../io/export.js';

@@ -1,4 +1,3 @@
-import React from 'react';
 import { Box, Text } from 'ink';
 import { WORKSPACES, WORKSPACE_NAMES, type Workspace } from '../app-state.js';
 import type { KeyHelp } from '../keys.js';
