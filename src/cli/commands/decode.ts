@@ -55,8 +55,8 @@ export function registerDecode(program: Command, ctx: CommandContext): void {
     .argument('<file>', 'WAV recording (PCM 8/16/24/32-bit or 32-bit float, any channels, 8000–192000 Hz)')
     .summary('read a recording of a keyed tone back to text, speed and timeline')
     .description(
-      'Decode the keyed tone in a WAV recording: text on stdout, a one-line summary (speed, tone, SNR) on stderr.\n' +
-        'The tone is found automatically (strongest spectral peak) and followed if it drifts; the speed is\n' +
+      'Decode the keyed tone in a WAV recording: text on stdout, a one-line summary (speed, tone, SNR) on stderr. ' +
+        'The tone is found automatically (strongest spectral peak) and trimmed as decoding goes; the speed is ' +
         'estimated and tracked. SNR is key-down carrier power over noise power in a 2500 Hz bandwidth.',
     )
     .option('--tone <hz>', 'carrier tone in the recording (Hz, 50–20000; default: found automatically)', numberIn('--tone', 50, 20_000))
