@@ -137,6 +137,15 @@ describe('keyform batch', () => {
     expect(Number(back!.durationS)).toBe(1.5);
   });
 
+  it('gives up on a file after --timeout: an error row, and the next file still runs', async () => {
+    // 10 ms is less than a worker needs to start: every file times out, each on a fresh worker.
+    const { code, out } = await run(['batch', folder, '--jobs', '1', '--timeout', '0.01', '--json']);
+    const report = JSON.parse(out) as { rows: BatchRow[] };
+    expect(report.rows.length).toBe(3);
+    for (const row of report.rows) expect(row.error).toBe(`${row.file}: gave up after 0.01 s (--timeout)`);
+    expect(code).toBe(1);
+  });
+
   it('Ctrl-C stops the batch, keeps the rows already written, and exits 130', async () => {
     const many = join(root, 'many');
     mkdirSync(many);

@@ -20,6 +20,7 @@ export interface BatchCliOptions {
   channel?: number;
   shapeSeconds: number;
   shape: boolean;
+  timeout?: number;
 }
 
 export type ReportFormat = 'csv' | 'jsonl';
@@ -231,6 +232,7 @@ export function registerBatch(program: Command, ctx: CommandContext): void {
     .option('--channel <n>', 'channel to use, 1 = first (default: the one with the strongest keyed tone)', numberIn('--channel', 1, 256, { integer: true }))
     .option('--shape-seconds <s>', 'audio the shape analysis looks at, from the start of each file (s, 1–3600)', numberIn('--shape-seconds', 1, 3600), 60)
     .option('--no-shape', 'skip the keying-shape analysis (rise time and bandwidth stay empty)')
+    .option('--timeout <s>', 'give up on a file after this long (s, 0.01–86400; default: no limit); it becomes an error row', numberIn('--timeout', 0.01, 86_400))
     .addHelpText(
       'after',
       `
@@ -295,14 +297,22 @@ async function runBatch(inputs: string[], o: BatchCliOptions, ctx: CommandContex
   ticker?.unref();
 
   try {
-    await Promise.all(
-      files.map((path) =>
-        pool.run({ path, options }, { signal: abort.signal }).then(record, (err: unknown) => {
+    // At most `jobs` files in flight: a file's time limit starts when it starts, and Ctrl-C has no queue to drain.
+    let next = 0;
+    const lane = async (): Promise<void> => {
+      while (next < files.length && !interrupted) {
+        const path = files[next++]!;
+        const limit = o.timeout ? AbortSignal.timeout(o.timeout * 1000) : null;
+        const signal = limit ? AbortSignal.any([abort.signal, limit]) : abort.signal;
+        try {
+          record(await pool.run({ path, options }, { signal }));
+        } catch (err) {
           if (interrupted) return; // aborted: not a row
-          record(errorRow(path, errorLine(err)));
-        }),
-      ),
-    );
+          record(errorRow(path, limit?.aborted ? `${path}: gave up after ${o.timeout} s (--timeout)` : errorLine(err)));
+        }
+      }
+    };
+    await Promise.all(Array.from({ length: jobs }, lane));
   } finally {
     if (ticker) clearInterval(ticker);
     process.removeListener('SIGINT', onSigint);
