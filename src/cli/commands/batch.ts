@@ -254,9 +254,10 @@ async function runBatch(inputs: string[], o: BatchCliOptions, ctx: CommandContex
   const { io } = ctx;
   const files = collectInputs(inputs);
   const jobs = Math.min(o.jobs ?? availableParallelism(), files.length);
+  const filename = workerPath();
   const writer = o.out ? new ReportWriter(o.out, Boolean(o.force)) : null;
   const { Piscina } = await import('piscina');
-  const pool = new Piscina<BatchTask, BatchRow>({ filename: workerPath(), minThreads: jobs, maxThreads: jobs, idleTimeout: 1000 });
+  const pool = new Piscina<BatchTask, BatchRow>({ filename, minThreads: jobs, maxThreads: jobs, idleTimeout: 1000 });
   const abort = new AbortController();
   let interrupted = false;
   const onSigint = (): void => {
