@@ -78,6 +78,7 @@ export function appReducer(state: AppState, action: AppAction): AppState {
         }
         case 'read': {
           const a = readKeyToAction(input, key, state.read, pageMs);
+          if (a?.type === 'expect-start') return appReducer(state, { type: 'read', action: { ...a, prefill: state.plan.settings.message } });
           return a ? appReducer(state, { type: 'read', action: a }) : state;
         }
         case 'shape': {

@@ -37,8 +37,8 @@ export interface Services {
   listRecordings(target: string | undefined): Promise<RecordingList>;
   /** Decodes a recording without blocking the keyboard, reporting progress 0…1. */
   decode(path: string, onProgress: (fraction: number) => void): Promise<DecodedRecording>;
-  /** Aligns a decoded recording against the expected message (alignTimelines). */
-  compare(decoded: DecodedRecording, expectedText: string, wpm: number): Promise<Record<string, unknown>>;
+  /** Aligns a decoded recording against the expected message planned with these settings (alignTimelines). */
+  compare(decoded: DecodedRecording, expectedText: string, settings: PlanSettings): Promise<Record<string, unknown>>;
   /** Shape measurement, prediction or sweep, off the render path; `signal` cancels it. */
   shape(task: ShapeTask, onProgress: (fraction: number) => void, signal?: AbortSignal): Promise<unknown>;
   fileExists(path: string): boolean;
@@ -80,10 +80,10 @@ export function realServices(): Services {
       return (await runOffThread({ kind: 'decode', path }, onProgress)) as DecodedRecording;
     },
 
-    async compare(decoded, expectedText, wpm) {
+    async compare(decoded, expectedText, settings) {
       const align = await loadAlign();
       if (!align) throw new NotAvailableError('the comparison with an expected message');
-      const planned = computePlan({ message: expectedText, wpm: Math.min(100, Math.max(1, wpm)), farnsworthWpm: null, weightPct: 50, riseMs: 5, edge: 'raised-cosine', toneHz: 700 });
+      const planned = computePlan({ ...settings, message: expectedText });
       if ('error' in planned) throw new InputError(planned.error);
       await yieldToInput();
       return align.alignTimelines(decoded.decode, planned.plan, {});

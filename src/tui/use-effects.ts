@@ -68,13 +68,16 @@ export function useAppEffects(state: AppState, dispatch: Dispatch<AppAction>, se
   }, [services, dispatch, decodeSeq, decodePath]);
 
   // Comparison with the expected message.
+  // The expected message is planned with the Plan workspace's timing (speed, Farnsworth, weighting).
   const { comparison, result, expected } = state.read;
+  const planSettings = state.plan.settings;
   useEffect(() => {
     if (comparison?.state !== 'busy' || !result || !expected) return;
     let live = true;
+    const atWpm = planSettings.wpm;
     services
-      .compare(result, expected, result.decode.wpm > 0 ? result.decode.wpm : 20)
-      .then((report) => live && dispatch({ type: 'read', action: { type: 'compared', comparison: { state: 'ready', report } } }))
+      .compare(result, expected, planSettings)
+      .then((report) => live && dispatch({ type: 'read', action: { type: 'compared', comparison: { state: 'ready', report, atWpm } } }))
       .catch(
         (err: Error) =>
           live &&
@@ -83,6 +86,7 @@ export function useAppEffects(state: AppState, dispatch: Dispatch<AppAction>, se
     return () => {
       live = false;
     };
+    // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [services, dispatch, comparison, result, expected]);
 
   // Shape jobs, each once.

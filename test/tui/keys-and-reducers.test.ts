@@ -159,6 +159,15 @@ describe('Read back workspace model', () => {
   });
 });
 
+describe('expected message through the app reducer', () => {
+  it('starts from the Plan message, so the beacon text is one key away', () => {
+    const s = press(initialAppState(), '2', 'e');
+    expect(s.read.typing).toBe(DEFAULT_SETTINGS.message);
+    const done = press(s, { k: { return: true } });
+    expect(done.read.expected).toBe(DEFAULT_SETTINGS.message);
+  });
+});
+
 describe('Shape workspace through the app reducer', () => {
   it('measures the recording chosen in Read back and predicts from the Plan settings', () => {
     let s = initialAppState();

@@ -132,7 +132,7 @@ export function ReadScreen({ state, width, height, theme }: { state: ReadState; 
   const paneRows = Math.max(2, height - used - 2);
   let pane: { title: string; lines: string[]; verdict?: { text: string; pass: boolean | null } } | null = null;
   if (state.typing !== null) {
-    pane = { title: 'Expected message (Enter compares, Esc drops)', lines: [`${state.typing}▏`] };
+    pane = { title: 'Expected message, planned at the Plan speed (Enter compares, Esc drops)', lines: [`${state.typing}▏`] };
   } else if (state.pane === 'compare') {
     const c = state.comparison;
     if (!state.expected) pane = { title: 'Comparison', lines: ['press e and type the message that was meant to be sent'] };
@@ -141,7 +141,7 @@ export function ReadScreen({ state, width, height, theme }: { state: ReadState; 
     else if (c.state === 'error') pane = { title: `Comparison with "${state.expected}"`, lines: [c.unavailable ? `not available yet: ${c.message}` : `${SYMBOLS.fail} ${c.message}`] };
     else {
       const cl = comparisonLines(c.report);
-      pane = { title: `Comparison with "${state.expected}"`, lines: cl.lines, verdict: { text: cl.verdict, pass: cl.pass } };
+      pane = { title: `Comparison with "${state.expected}" at ${c.atWpm} wpm`, lines: cl.lines, verdict: { text: cl.verdict, pass: cl.pass } };
     }
   } else if (r) {
     pane = r.timing

@@ -4,7 +4,7 @@ import { editText } from '../widgets/text-edit.js';
 
 export type Comparison =
   | { state: 'busy' }
-  | { state: 'ready'; report: Record<string, unknown> }
+  | { state: 'ready'; report: Record<string, unknown>; /** Speed the expected message was planned at [wpm]. */ atWpm: number }
   | { state: 'error'; message: string; unavailable?: boolean };
 
 export interface ReadState {
@@ -44,7 +44,7 @@ export type ReadAction =
   | { type: 'progress'; path: string; progress: number }
   | { type: 'decoded'; result: DecodedRecording }
   | { type: 'failed'; path: string; message: string; unavailable: boolean }
-  | { type: 'expect-start' }
+  | { type: 'expect-start'; /** Text to start from when nothing is expected yet (the Plan message). */ prefill?: string }
   | { type: 'expect-set'; value: string }
   | { type: 'expect-commit' }
   | { type: 'expect-cancel' }
@@ -84,7 +84,7 @@ export function readReducer(state: ReadState, action: ReadAction): ReadState {
     case 'failed':
       return { ...state, decoding: null, error: { message: action.message, unavailable: action.unavailable } };
     case 'expect-start':
-      return { ...state, typing: state.expected ?? '' };
+      return { ...state, typing: state.expected ?? action.prefill ?? '' };
     case 'expect-set':
       return state.typing === null ? state : { ...state, typing: action.value };
     case 'expect-cancel':
@@ -144,7 +144,7 @@ export function readKeyToAction(input: string, k: KeyInfo, state: ReadState, pag
 export const READ_KEYS: readonly KeyHelp[] = [
   { keys: '↑ ↓  (k j)', does: 'choose a recording' },
   { keys: 'Enter  (o)', does: 'decode it (keys stay live while it runs)' },
-  { keys: 'e', does: 'type the message meant to be sent, to compare' },
+  { keys: 'e', does: 'the message meant to be sent (Plan speed), to compare' },
   { keys: '← →  z', does: 'scroll the envelope; z whole recording / detail' },
   { keys: 'v', does: 'lower pane: timing histogram / comparison' },
   { keys: ', .  PgUp PgDn', does: 'scroll the lower pane' },

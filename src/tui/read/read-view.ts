@@ -111,11 +111,12 @@ export function comparisonLines(report: Record<string, unknown>): { verdict: str
   const pass = typeof report.pass === 'boolean' ? report.pass : null;
   const missing = Array.isArray(report.missing) ? report.missing.length : num(report.missing) ?? 0;
   const extra = Array.isArray(report.extra) ? report.extra.length : num(report.extra) ?? 0;
-  const verdict =
-    `${pass === null ? '' : pass ? 'PASS' : 'FAIL'} (±${fmt(report.tolerancePct, 0)} % of a unit) · ${missing} missing · ${extra} extra · ` +
-    `largest error ${fmt(report.maxErrorMs)} ms (${fmt(report.maxErrorPct, 0)} %) · offset ${fmt(report.offsetMs)} ms`;
+  const verdict = `${pass === null ? '' : pass ? 'PASS' : 'FAIL'} at ±${fmt(report.tolerancePct, 0)} % of a unit: worst ${fmt(report.maxErrorMs)} ms (${fmt(report.maxErrorPct, 0)} %)`;
   const signed = (x: number | null, unit: string, d = 1): string => (x === null ? '–' : `${x >= 0 ? '+' : ''}${x.toFixed(d)}${unit}`);
-  const lines: string[] = ['  # char kind status  start error    length error'];
+  const lines: string[] = [
+    `${missing} missing · ${extra} extra · offset ${fmt(report.offsetMs)} ms (heard − planned, removed)`,
+    '  # char kind status  start error    length error',
+  ];
   const elements = Array.isArray(report.elements) ? (report.elements as Record<string, unknown>[]) : [];
   elements.forEach((e, i) => {
     const start = `${signed(num(e.startErrorMs), ' ms')} ${signed(num(e.startErrorPct), ' %', 0)}`;
