@@ -40,6 +40,10 @@ export const PREROLL_MS = 6000;
 const FRAME_MS = 2.5;
 /** Slots per unit at the starting speed. */
 const SLOTS_PER_UNIT = 4;
+/** Tone loop: phase-step averaging [ms], time constant of the offset [s] and of the drift rate [s]. */
+const FLL_AVERAGE_MS = 800;
+const FLL_TIME_S = 2;
+const FLL_RATE_S = 4;
 /** Bounds of the tracked timing spread (standard deviation of ln duration). */
 const SPREAD_MIN = 0.15;
 const SPREAD_MAX = 0.4;
@@ -100,6 +104,8 @@ export class StreamDecoder {
   /** Tone followed by the frequency-locked loop [Hz]. */
   private toneHz = 0;
   private replaying = false;
+  /** Tone drift rate followed by the loop [Hz/s]. */
+  private toneRateHzPerS = 0;
   private prevOn = false;
   private prevRe = 0;
   private prevIm = 0;
@@ -360,21 +366,26 @@ export class StreamDecoder {
     if (decoder.t % COMMIT_EVERY === 0) this.commit(false);
   }
 
-  /** Frequency-locked loop: the phase step between consecutive key-down slots gives the tone offset. */
+  /**
+   * Frequency-locked loop: the phase step between consecutive key-down slots, averaged, gives the
+   * tone's offset from the mixer; a second integrator follows a steady drift.
+   */
   private trackTone(zr: number, zi: number, on: boolean): void {
     if (on && this.prevOn && !this.replaying) {
       const cr = zr * this.prevRe + zi * this.prevIm;
       const ci = zi * this.prevRe - zr * this.prevIm;
-      const a = Math.min(1, this.slotMs / 1500);
+      const a = Math.min(1, this.slotMs / FLL_AVERAGE_MS);
       this.fllRe += a * (cr - this.fllRe);
       this.fllIm += a * (ci - this.fllIm);
       this.fllMag += a * (Math.hypot(cr, ci) - this.fllMag);
       const mag = Math.hypot(this.fllRe, this.fllIm);
       if (this.fllMag > 0 && mag / this.fllMag > 0.5) {
-        const dfHz = Math.atan2(this.fllIm, this.fllRe) / (2 * Math.PI * (this.slotMs / 1000));
-        const gain = Math.min(1, this.slotMs / 6000);
+        const dt = this.slotMs / 1000;
+        const dfHz = Math.atan2(this.fllIm, this.fllRe) / (2 * Math.PI * dt);
+        // Second-order loop: follows a steadily drifting tone without a standing offset.
+        this.toneRateHzPerS += (dfHz / (FLL_RATE_S * FLL_RATE_S)) * dt;
         const mixer = this.mixer!;
-        this.toneHz = Math.max(this.toneStartHz - 80, Math.min(this.toneStartHz + 80, this.toneHz + gain * dfHz));
+        this.toneHz = Math.max(this.toneStartHz - 80, Math.min(this.toneStartHz + 80, this.toneHz + (dfHz / FLL_TIME_S + this.toneRateHzPerS) * dt));
         // Retune (a table rebuild) only when the tracked tone has moved a little.
         if (Math.abs(this.toneHz - mixer.toneHz) > 0.02 && this.toneHz > 0 && this.toneHz < this.sampleRate / 2) mixer.setTone(this.toneHz);
       }

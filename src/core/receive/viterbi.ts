@@ -144,7 +144,7 @@ export class SequenceDecoder {
   /** Replaces the expected segment lengths [slots]. */
   setModel(model: DurationModel): void {
     this.model = { ...model, spread: model.spread ? { ...model.spread } : undefined };
-    this.blockSlots = Math.max(1, Math.round(2 * (model.dit + model.elementGap)));
+    this.blockSlots = Math.max(1, Math.round(model.dit + model.elementGap));
     this.minWeakSlots = Math.max(2, Math.round(0.75 * model.dit));
     const cap = Math.floor(this.historySlots / 4);
     const spread = model.spread ?? SPREAD;
@@ -309,8 +309,8 @@ export class SequenceDecoder {
 
   /** Log-likelihood ratio (mark against noise) of slots (a, b], both within the history. */
   markLlr(a: number, b: number): number {
-    // Phase is held over blocks of four units: every dash is summed coherently (the full matched
-    // filter), while a very long mark from a drifting tone is not lost to one coherent sum.
+    // Phase is held over blocks of two units: dots whole, dashes in two coherent pieces summed
+    // as energy, so a tone a few hertz off (drift the loop has not caught yet) costs little.
     const M = this.mask;
     const block = this.blockSlots;
     let sum = 0;
