@@ -112,6 +112,14 @@ export interface StreamDecode {
  * @example const { result } = await decodeAudioSource(await openAudio('-', { stdin, raw: 's16le', rate: 8000 }), { onText: write });
  */
 export async function decodeAudioSource(audio: AudioSource, options: StreamDecodeOptions = {}): Promise<StreamDecode> {
+  try {
+    return await decodeChunks(audio, options);
+  } finally {
+    await audio.close(); // the file is closed also when decoding stops early
+  }
+}
+
+async function decodeChunks(audio: AudioSource, options: StreamDecodeOptions): Promise<StreamDecode> {
   const { sampleRate, channelCount } = audio;
   if (options.channel !== undefined && (!Number.isInteger(options.channel) || options.channel < 0 || options.channel >= channelCount)) {
     const n = `${channelCount} channel${channelCount === 1 ? '' : 's'}`;

@@ -51,6 +51,8 @@ export interface AudioSource {
   warnings: string[];
   /** The audio, chunk by chunk (one Float32Array per channel). Can be iterated once. */
   chunks(): AsyncIterable<Float32Array[]>;
+  /** Releases the input (closes the file) when the chunks are not read to the end; safe to call twice. */
+  close(): Promise<void>;
 }
 
 type Parser = WavStreamParser | RawPcmParser;
@@ -156,6 +158,9 @@ export async function openAudio(pathOrDash: string, options: OpenAudioOptions = 
         }
       })();
     },
+    async close() {
+      await blocks.return?.();
+    },
   };
 }
 
@@ -213,6 +218,7 @@ export function openWavBytes(name: string, bytes: Uint8Array): AudioSource {
         }
       })();
     },
+    close: async () => {},
   };
 }
 
