@@ -114,7 +114,7 @@ export function comparisonLines(report: Record<string, unknown>): { verdict: str
   const verdict = `${pass === null ? '' : pass ? 'PASS' : 'FAIL'} at ±${fmt(report.tolerancePct, 0)} % of a unit: worst ${fmt(report.maxErrorMs)} ms (${fmt(report.maxErrorPct, 0)} %)`;
   const signed = (x: number | null, unit: string, d = 1): string => (x === null ? '–' : `${x >= 0 ? '+' : ''}${x.toFixed(d)}${unit}`);
   const lines: string[] = [
-    `${missing} missing · ${extra} extra · offset ${fmt(report.offsetMs)} ms (heard − planned, removed)`,
+    `${missing} missing · ${extra} extra · offset ${fmt(report.offsetMs)} ms removed`,
     '  # char kind status  start error    length error',
   ];
   const elements = Array.isArray(report.elements) ? (report.elements as Record<string, unknown>[]) : [];
