@@ -67,6 +67,14 @@ describe('decoding audio made by sox', () => {
     expect(r.wpm).toBeLessThan(18 * 1.05);
     expect(r.toneHz).toBeGreaterThan(598);
     expect(r.toneHz).toBeLessThan(602);
+    // Every mark sox made lasts 1 or 3 units (§2 of the Recommendation); the measured lengths
+    // come back within 2 ms, and the gaps inside characters within 2 ms of one unit.
+    const unitMs = 1200 / 18;
+    for (const [a, b] of r.marks) expect(Math.min(Math.abs(b - a - unitMs), Math.abs(b - a - 3 * unitMs))).toBeLessThan(2);
+    for (const c of r.characters) {
+      const inside = r.marks.filter(([a, b]) => a >= c.startMs && b <= c.endMs);
+      for (let i = 1; i < inside.length; i++) expect(Math.abs(inside[i]![0] - inside[i - 1]![1] - unitMs)).toBeLessThan(2);
+    }
   });
 
   it('44100 Hz 24-bit, 850 Hz tone, 30 wpm', () => {

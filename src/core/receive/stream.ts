@@ -106,6 +106,9 @@ export class StreamDecoder {
   private replaying = false;
   /** Tone drift rate followed by the loop [Hz/s]. */
   private toneRateHzPerS = 0;
+  /** Ring of frame amplitudes (as long as the decoder's history), for refining mark edges. */
+  private frameAmp = new Float32Array(0);
+  private frameCount = 0;
   private prevOn = false;
   private prevRe = 0;
   private prevIm = 0;
@@ -314,6 +317,8 @@ export class StreamDecoder {
     this.lagSlots = Math.min(1024, Math.max(64, Math.round(LAG_UNITS * unitSlots), Math.round(2.5 * this.model.wordGap)));
     this.zRe = new Float64Array(this.decoder.historySlots);
     this.zIm = new Float64Array(this.decoder.historySlots);
+    this.frameAmp = new Float32Array(this.decoder.historySlots * this.framesPerSlot);
+    this.frameCount = 0;
   }
 
   // ---- streaming chain ----------------------------------------------------------------------
@@ -338,6 +343,7 @@ export class StreamDecoder {
   }
 
   private frame(re: number, im: number): void {
+    this.frameAmp[this.frameCount++ % this.frameAmp.length] = Math.hypot(re, im);
     this.slotRe += re;
     this.slotIm += im;
     if (++this.slotFill === this.framesPerSlot) {
@@ -432,18 +438,66 @@ export class StreamDecoder {
       if (seg.endSlot > limit) break;
       if (seg.endSlot <= this.committedSlot) continue;
       const s: Segment = seg.startSlot < this.committedSlot ? { ...seg, startSlot: this.committedSlot } : seg;
-      this.account(s);
+      let startMs = this.slotToMs(s.startSlot);
+      let endMs = this.slotToMs(s.endSlot);
+      if (s.kind === 'mark') [startMs, endMs] = this.refineEdges(s.startSlot, s.endSlot, startMs, endMs);
+      this.account(s, s.kind === 'mark' ? (endMs - startMs) / this.slotMs : s.endSlot - s.startSlot);
       const llr = s.kind === 'idle' ? -10 : decoder.markLlr(s.startSlot, s.endSlot);
       const confidence = s.kind === 'mark' ? 1 / (1 + Math.exp(-llr)) : 1 / (1 + Math.exp(llr));
-      this.assembler.feed(s, round(this.slotToMs(s.startSlot)), round(this.slotToMs(s.endSlot)), confidence);
+      this.assembler.feed(s, round(startMs), round(endMs), confidence);
       this.committedSlot = s.endSlot;
     }
     if (!final) this.trackSpeed();
   }
 
+  /**
+   * Moves a mark's edges from slot boundaries to where the frame amplitude (frames of about
+   * 2.5 ms) crosses halfway between the noise and the mark's own level, interpolated between frame
+   * centres — the 50 % point, where keyform's synthesizer centres its edges. Left on the slot
+   * boundaries when the frames are too noisy to say.
+   */
+  private refineEdges(aSlot: number, bSlot: number, startMs: number, endMs: number): [number, number] {
+    const k = this.framesPerSlot;
+    const R = this.frameAmp.length;
+    const f0 = aSlot * k;
+    const f1 = bSlot * k;
+    if (this.frameCount - (f0 - k) > R || f1 + k > this.frameCount) return [startMs, endMs];
+    const amp = (f: number): number => this.frameAmp[f % R]!;
+    let sum = 0;
+    let count = 0;
+    const inner = f1 - f0 > 2 * k ? k : 1;
+    for (let f = f0 + inner; f < f1 - inner; f++) {
+      sum += amp(f);
+      count++;
+    }
+    if (count === 0) return [startMs, endMs];
+    const level = sum / count;
+    const noiseAmp = 0.886 * Math.sqrt(this.slicer!.noisePow / k); // Rayleigh mean of one frame's noise
+    if (level < 3 * noiseAmp) return [startMs, endMs];
+    const half = 0.5 * (level + noiseAmp);
+    const spf = this.mixer!.samplesPerFrame;
+    const centreMs = (f: number): number => ((this.originSample + (f + 0.5) * spf) * 1000) / this.sampleRate;
+    const crossing = (from: number, to: number, rising: boolean, near: number): number | null => {
+      let best: number | null = null;
+      for (let f = Math.max(1, from); f <= to; f++) {
+        const p = amp(f - 1);
+        const q = amp(f);
+        const hit = rising ? p < half && q >= half : p >= half && q < half;
+        if (!hit) continue;
+        const t = centreMs(f - 1) + ((half - p) / (q - p)) * (centreMs(f) - centreMs(f - 1));
+        if (best === null || Math.abs(t - near) < Math.abs(best - near)) best = t;
+      }
+      return best;
+    };
+    const rise = crossing(f0 - k, f0 + k, true, startMs);
+    const fall = crossing(f1 - k, f1 + k, false, endMs);
+    const s = rise ?? startMs;
+    const e = fall ?? endMs;
+    return e > s ? [s, e] : [startMs, endMs];
+  }
+
   /** Updates level statistics and the duration model from a decided segment. */
-  private account(s: Segment): void {
-    const d = s.endSlot - s.startSlot;
+  private account(s: Segment, d: number): void {
     const H = this.decoder!.historySlots;
     const st = this.stats;
     if (s.kind === 'mark' || s.kind === 'element-gap' || s.kind === 'letter-gap' || s.kind === 'word-gap') {
