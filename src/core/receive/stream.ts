@@ -51,8 +51,9 @@ const SPREAD_MAX = 0.4;
 const CANDIDATES = 6;
 /** Grid fit (see TimingEstimate.fit) above which the pre-roll needs no likelihood test. */
 const TRUSTED_FIT = 0.6;
-const RANGE_LO = 0.65;
-const RANGE_HI = 1.8;
+/** Candidate speeds tested against the best-fitting one: from 0.3 to 3.5 times its unit. */
+const RANGE_LO = 0.3;
+const RANGE_HI = 3.5;
 /** Decisions are final this many units after the fact. */
 const LAG_UNITS = 40;
 /** Traceback period [slots]. */
