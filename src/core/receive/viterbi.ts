@@ -30,7 +30,7 @@ const SPREAD = { dit: 0.3, dah: 0.3, elementGap: 0.35, letterGap: 0.35, wordGap:
 /** Log prior of the gap after an element (roughly how often each follows a mark in plain text). */
 const GAP_PRIOR = { elementGap: Math.log(0.6), letterGap: Math.log(0.3), wordGap: Math.log(0.1) };
 /** Log prior cost of a mark 6 dB below the tracked amplitude. */
-const WEAKER_PRIOR = -3;
+const WEAKER_PRIOR = -4;
 /** Paths more than this far (natural log) below the best one are dropped (beam search). */
 const BEAM = 40;
 /** Log penalty of decoding a run that is not a known character. */
@@ -145,7 +145,7 @@ export class SequenceDecoder {
   setModel(model: DurationModel): void {
     this.model = { ...model, spread: model.spread ? { ...model.spread } : undefined };
     this.blockSlots = Math.max(1, Math.round(model.dit + model.elementGap));
-    this.minWeakSlots = Math.max(2, Math.round(0.75 * model.dit));
+    this.minWeakSlots = Math.max(2, Math.round(model.dit));
     const cap = Math.floor(this.historySlots / 4);
     const spread = model.spread ?? SPREAD;
     this.tables = {
