@@ -104,7 +104,10 @@ export class LevelSlicer {
     // plateau) measure the level; the slopes of each mark would pull it down.
     const prev = this.prevAmp;
     if (prev > 2.63 * Math.sqrt(noise) && prev >= this.prevPrevAmp && prev > amp) {
-      this.peakPow += this.alphaSignal * (prev * prev - this.peakPow);
+      // Strong signals follow fades quickly; weak ones average over more marks (less noise).
+      const unitSnrDb = 10 * Math.log10(Math.max(1e-9, (this.peakPow - noise) / noise));
+      const alpha = this.alphaSignal * (1 + Math.min(1, Math.max(0, (unitSnrDb - 12) / 10)));
+      this.peakPow += alpha * (prev * prev - this.peakPow);
     }
     this.prevPrevAmp = prev;
     this.prevAmp = amp;
