@@ -208,7 +208,7 @@ function refine(re: Float64Array, im: Float64Array, n: number, frameMs: number, 
 /**
  * Splits gaps of two units or more into letter and word gaps. Farnsworth spacing stretches both in
  * the ratio 3 : 7 (QEX 1990), so two clusters about 2.3× apart are letter and word gaps; a single
- * cluster is taken as letter gaps.
+ * cluster is letter gaps if short or numerous, else word gaps.
  */
 export function splitLongGaps(gapsMs: number[], unitMs: number): { letterGapMs: number; wordGapMs: number } {
   if (gapsMs.length === 0) return { letterGapMs: 3 * unitMs, wordGapMs: 7 * unitMs };
@@ -232,8 +232,10 @@ export function splitLongGaps(gapsMs: number[], unitMs: number): { letterGapMs: 
     const word = Math.exp(logs.slice(bestSplit).reduce((a, b) => a + b, 0) / (logs.length - bestSplit));
     return { letterGapMs: letter, wordGapMs: Math.max(word, 1.6 * letter) };
   }
-  // One cluster: letter gaps, which outnumber word gaps several times in plain text (stretched,
-  // when longer than 5 units, by Farnsworth spacing).
+  // One cluster. Below 5 units: letter gaps. Longer: three or more of them are stretched letter
+  // gaps (Farnsworth spacing; letter gaps outnumber word gaps several times in plain text), one or
+  // two are more likely standard word gaps.
   const mean = Math.exp(total / logs.length);
-  return { letterGapMs: mean, wordGapMs: Math.max(7 * unitMs, (7 / 3) * mean) };
+  if (mean < 5 * unitMs || logs.length >= 3) return { letterGapMs: mean, wordGapMs: Math.max(7 * unitMs, (7 / 3) * mean) };
+  return { letterGapMs: Math.max(3 * unitMs, (3 / 7) * mean), wordGapMs: mean };
 }

@@ -110,6 +110,8 @@ export class StreamDecoder {
   /** Ring of frame amplitudes (as long as the decoder's history), for refining mark edges. */
   private frameAmp = new Float32Array(0);
   private frameCount = 0;
+  private lastMarkEndMs = 0;
+  private afterElementGap = false;
   private prevOn = false;
   private prevRe = 0;
   private prevIm = 0;
@@ -163,7 +165,14 @@ export class StreamDecoder {
   finish(): DecodeResult {
     if (this.phase === 'search') this.tryLock(true);
     if (this.phase === 'run') {
-      this.commit(true);
+      // The recording may stop right after the last mark: run the decoder on through a word gap
+      // of evidence-free slots, so the last character can close like any other; nothing that
+      // starts after the real end is kept.
+      const decoder = this.decoder!;
+      const realEnd = decoder.t;
+      const pad = Math.ceil(1.5 * this.model!.wordGap) + 2;
+      for (let i = 0; i < pad; i++) decoder.step(0, 0, 0);
+      this.commit(true, realEnd);
       this.assembler.flush();
     }
     this.phase = 'done';
@@ -430,7 +439,7 @@ export class StreamDecoder {
   }
 
   /** Makes the decisions older than the lag final (all of them at the end). */
-  private commit(final: boolean): void {
+  private commit(final: boolean, realEnd = Infinity): void {
     const decoder = this.decoder!;
     const limit = final ? decoder.t : decoder.t - this.lagSlots;
     if (limit <= this.committedSlot) return;
@@ -438,11 +447,22 @@ export class StreamDecoder {
     for (const seg of segments) {
       if (seg.endSlot > limit) break;
       if (seg.endSlot <= this.committedSlot) continue;
-      const s: Segment = seg.startSlot < this.committedSlot ? { ...seg, startSlot: this.committedSlot } : seg;
+      if (seg.startSlot >= realEnd) break;
+      let s: Segment = seg.startSlot < this.committedSlot ? { ...seg, startSlot: this.committedSlot } : seg;
+      if (s.endSlot > realEnd) s = { ...s, endSlot: realEnd }; // cut by the end of the recording
       let startMs = this.slotToMs(s.startSlot);
       let endMs = this.slotToMs(s.endSlot);
       if (s.kind === 'mark') [startMs, endMs] = this.refineEdges(s.startSlot, s.endSlot, startMs, endMs);
       this.account(s, s.kind === 'mark' ? (endMs - startMs) / this.slotMs : s.endSlot - s.startSlot);
+      // Element gaps for the speed figure: between the refined edges of the marks around them.
+      if (s.kind === 'mark') {
+        if (this.afterElementGap) {
+          this.stats.unitSum += (startMs - this.lastMarkEndMs) / this.slotMs;
+          this.stats.unitCount++;
+        }
+        this.lastMarkEndMs = endMs;
+      }
+      this.afterElementGap = s.kind === 'element-gap';
       const llr = s.kind === 'idle' ? -10 : decoder.markLlr(s.startSlot, s.endSlot);
       const confidence = s.kind === 'mark' ? 1 / (1 + Math.exp(-llr)) : 1 / (1 + Math.exp(llr));
       this.assembler.feed(s, round(startMs), round(endMs), confidence);
@@ -538,8 +558,6 @@ export class StreamDecoder {
       case 'element-gap':
         spreadOf('elementGap', m.elementGap);
         m.elementGap += a * (d - m.elementGap);
-        st.unitSum += d;
-        st.unitCount++;
         break;
       case 'letter-gap':
         spreadOf('letterGap', m.letterGap);
