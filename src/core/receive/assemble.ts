@@ -19,6 +19,7 @@ export interface DecodedCharacter {
 /**
  * Turns decided segments into marks, characters and text, in order, calling `onText` with each
  * piece of text as it becomes final. Holds only the character being assembled.
+ * @example const a = new Assembler(buildCodeTrie()); a.feed(markE, 0, 60, 1); a.feed(wordGap, 60, 480, 1); a.flush(); a.decodedText //=> 'E'
  */
 export class Assembler {
   readonly marks: Interval[] = [];

@@ -111,14 +111,18 @@ const fit = (r: number, c: number): number => Math.exp(-((Math.log(r / c)) ** 2)
  * @param n - Number of frames to use.
  * @param frameMs - Frame length [ms], 0.5…20.
  * @returns The estimate, or null when fewer than two marks stand out of the noise.
+ * @example estimateTiming(re, im, n, 2.5)?.unitMs //=> ≈ 60 for frames of 20 wpm keying
  */
 export function estimateTiming(re: Float64Array, im: Float64Array, n: number, frameMs: number): TimingEstimate | null {
   return estimateTimingCandidates(re, im, n, frameMs, 1)[0] ?? null;
 }
 
 /**
- * Like estimateTiming, but returns the `count` best-scoring candidate speeds (best first), for a
- * caller that can test each against the data (e.g. with the sequence decoder's likelihood).
+ * Like estimateTiming, but returns the `count` best-scoring candidate speeds (best first, plus the
+ * best of each speed octave), for a caller that can test each against the data (e.g. with the
+ * sequence decoder's likelihood).
+ * @param count - How many candidates at most, ≥ 1.
+ * @example estimateTimingCandidates(re, im, n, 2.5, 6).map((c) => Math.round(c.unitMs)) //=> [60, 61, 27, …]
  */
 export function estimateTimingCandidates(re: Float64Array, im: Float64Array, n: number, frameMs: number, count: number): TimingEstimate[] {
   const pr = new Float64Array(n + 1);
@@ -209,6 +213,9 @@ function refine(re: Float64Array, im: Float64Array, n: number, frameMs: number, 
  * Splits gaps of two units or more into letter and word gaps. Farnsworth spacing stretches both in
  * the ratio 3 : 7 (QEX 1990), so two clusters about 2.3× apart are letter and word gaps; a single
  * cluster is letter gaps if short or numerous, else word gaps.
+ * @param gapsMs - Gaps of two units or more [ms]. @param unitMs - Unit [ms].
+ * @returns Letter and word gap [ms].
+ * @example splitLongGaps([180, 185, 175, 420], 60) //=> { letterGapMs: ≈ 180, wordGapMs: 420 }
  */
 export function splitLongGaps(gapsMs: number[], unitMs: number): { letterGapMs: number; wordGapMs: number } {
   if (gapsMs.length === 0) return { letterGapMs: 3 * unitMs, wordGapMs: 7 * unitMs };

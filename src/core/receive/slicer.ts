@@ -28,6 +28,9 @@ export interface SliceStep {
 /** Highest SNR of one mixer frame the levels may claim (20 dB), so a noiseless file does not divide by zero. */
 const MAX_FRAME_SNR = 100;
 
+/**
+ * @example const s = new LevelSlicer({ windowSlots: 4, slotMs: 15, signalPow: 2.25, noisePow: 0.25, framesPerSlot: 6 }); s.step(1.5, 0).on // true once a mark fills the window
+ */
 export class LevelSlicer {
   private readonly w: number;
   private readonly ringRe: Float64Array;

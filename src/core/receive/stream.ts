@@ -73,6 +73,7 @@ const TRIE: CodeTrie = buildCodeTrie();
  * (signal/noise tracking, hysteresis) and tone tracking → sequence decoder (soft decisions, Viterbi
  * over the code tree with speed tracking) → characters. State is bounded: the pre-roll buffer,
  * fixed rings, and the output (marks, characters).
+ * @example const d = new StreamDecoder(8000, { onText: (t) => out.write(t) }); d.push(chunk); d.finish().text //=> 'Q7ZKT'
  */
 export class StreamDecoder {
   private readonly sampleRate: number;
@@ -647,6 +648,8 @@ export class StreamDecoder {
  * Keeps a duration model plausible (in place): dash/dot ratio 1.8…4.5 around the unit, element
  * gaps 0.5…1.8 units, letter gaps at least 2.2 units, word gaps at least 1.6 letter gaps
  * (ITU-R M.1677-1 §2 with room for hand-sent timing; Farnsworth stretches only the long gaps).
+ * @param m - Mean lengths [slots], changed in place. @returns The same object.
+ * @example constrainModel({ dit: 4, dah: 4, elementGap: 4, letterGap: 4, wordGap: 4 }).dah //=> 8.8 (2.2 units)
  */
 export function constrainModel(m: DurationModel): DurationModel {
   const unit = (m.dit + m.elementGap + m.dah / 3) / 3;

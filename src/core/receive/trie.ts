@@ -23,7 +23,10 @@ export interface CodeTrie {
 /** Longest run of elements decoded as an unknown character (`*`). */
 export const UNKNOWN_DEPTH = 6;
 
-/** Builds the code tree from the alphabet (ITU-R M.1677-1 patterns, prosigns and extensions). */
+/**
+ * Builds the code tree from the alphabet (ITU-R M.1677-1 patterns, prosigns and extensions).
+ * @example buildCodeTrie().text[buildCodeTrie().dotChild[0]!] //=> 'E'
+ */
 export function buildCodeTrie(): CodeTrie {
   const patterns = new Set<string>();
   for (const p of PATTERN_TO_TEXT.keys()) patterns.add(p);

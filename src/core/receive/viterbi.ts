@@ -43,6 +43,8 @@ const CHAR_PRIOR = 0;
  * tone 6 dB weaker (with a prior cost), whichever fits best, so that marks stay visible while the
  * amplitude tracker catches up with a fade.
  * @param x - 2·|Σ y| over the segment. @param q - Σ A²/σ² over the segment.
+ * @returns Log-likelihood ratio [nats].
+ * @example markScore(0, 0) //=> 0
  */
 export function markScore(x: number, q: number): number {
   const full = lnI0(x) - q;
@@ -77,6 +79,7 @@ function durationTable(mean: number, spread: number, cap: number): DurationTable
  * ln I0(2·|Σ y|) − Σ q, the log-likelihood ratio of a tone of unknown phase against noise; gaps
  * score 0 (the noise hypothesis). Durations score by log-normal priors around the tracked means.
  * State is bounded: a ring of `historySlots` slots of scores and back-pointers.
+ * @example const d = new SequenceDecoder(buildCodeTrie(), { dit: 4, dah: 12, elementGap: 4, letterGap: 12, wordGap: 28 }); d.step(yRe, yIm, q); d.traceback(0) // segments
  */
 export class SequenceDecoder {
   readonly historySlots: number;
