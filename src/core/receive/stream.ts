@@ -649,7 +649,7 @@ export class StreamDecoder {
  * gaps 0.5…1.8 units, letter gaps at least 2.2 units, word gaps at least 1.6 letter gaps
  * (ITU-R M.1677-1 §2 with room for hand-sent timing; Farnsworth stretches only the long gaps).
  * @param m - Mean lengths [slots], changed in place. @returns The same object.
- * @example constrainModel({ dit: 4, dah: 4, elementGap: 4, letterGap: 4, wordGap: 4 }).dah //=> 8.8 (2.2 units)
+ * @example constrainModel({ dit: 4, dah: 4, elementGap: 4, letterGap: 4, wordGap: 4 }).dah //=> 7.2 (1.8 dots)
  */
 export function constrainModel(m: DurationModel): DurationModel {
   const unit = (m.dit + m.elementGap + m.dah / 3) / 3;

@@ -80,7 +80,7 @@ export type FadingOptions =
  * power over the whole signal, so a stated SNR remains the average SNR; the periodic gain is 0 dB
  * at its peaks. Gain is computed every millisecond and interpolated linearly.
  * @returns The same array.
- * @example applyFading(new Float32Array(8000).fill(1), 8000, { kind: 'periodic', depthDb: 20, periodS: 2 })[4000] //=> 0.1
+ * @example applyFading(new Float32Array(16000).fill(1), 8000, { kind: 'periodic', depthDb: 20, periodS: 2 })[8000] //=> 0.1 (−20 dB at half a period)
  */
 export function applyFading(samples: Float32Array, sampleRate: number, options: FadingOptions): Float32Array {
   const stepMs = 1;
