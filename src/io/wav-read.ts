@@ -55,6 +55,13 @@ export function inspectWavHeader(name: string, bytes: Uint8Array): FmtInfo {
       if (!okBits.includes(bitsPerSample)) {
         throw new InputError(`${name}: unsupported ${bitsPerSample}-bit ${formatTag === 3 ? 'float' : 'PCM'} samples`);
       }
+      if (channels > 256) throw new InputError(`${name}: WAV header says ${channels} channels (at most 256 are read)`);
+      // The block size must match channels × sample size: readers size their buffers from it, so a
+      // header that disagrees could make them reserve far more memory than the file holds.
+      const blockAlign = view.getUint16(off + 20, true);
+      if (blockAlign !== (channels * bitsPerSample) / 8) {
+        throw new InputError(`${name}: WAV header block size ${blockAlign} does not match ${channels} channel(s) of ${bitsPerSample}-bit samples`);
+      }
       return { formatTag, channels, sampleRate, bitsPerSample, extensibleTagOffset };
     }
     off += 8 + size + (size & 1);

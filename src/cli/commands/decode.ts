@@ -1,15 +1,21 @@
-import type { Command } from 'commander';
+import { Option, type Command } from 'commander';
 import { InputError } from '../../core/errors.js';
-import { decodeSamples, pickChannel, type DecodeResult } from '../../core/receive/index.js';
+import type { DecodeResult } from '../../core/receive/index.js';
+import { openAudio } from '../../io/audio-source.js';
+import { RAW_ENCODINGS, type RawEncoding } from '../../io/wav-stream.js';
+import { decodeAudioSource, followText } from '../analyze-recording.js';
+import { createProgress } from '../progress.js';
 import { formatJson } from '../../io/json.js';
-import { readWavFile } from '../../io/wav-read.js';
 import type { CommandContext } from '../io.js';
-import { numberIn } from '../options.js';
+import { numberIn, oneOf } from '../options.js';
 
 export interface DecodeCliOptions {
   tone?: number;
   channel?: number;
   json?: boolean;
+  raw?: RawEncoding;
+  rate?: number;
+  channels?: number;
 }
 
 const r1 = (x: number): number => Math.round(x * 10) / 10;
@@ -52,7 +58,7 @@ export function decodeSummary(result: DecodeResult): string {
 export function registerDecode(program: Command, ctx: CommandContext): void {
   program
     .command('decode')
-    .argument('<file>', 'WAV recording (PCM 8/16/24/32-bit or 32-bit float, any channels, 8000–192000 Hz)')
+    .argument('<file>', 'WAV recording (PCM 8/16/24/32-bit or 32-bit float, any channels, 8000–192000 Hz), or - for stdin')
     .summary('read a recording of a keyed tone back to text, speed and timeline')
     .description(
       'Decode the keyed tone in a WAV recording: text on stdout, a one-line summary (speed, tone, SNR) on stderr. ' +
@@ -62,6 +68,9 @@ export function registerDecode(program: Command, ctx: CommandContext): void {
     .option('--tone <hz>', 'carrier tone in the recording (Hz, 50–20000; default: found automatically)', numberIn('--tone', 50, 20_000))
     .option('--channel <n>', 'channel to decode, 1 = first (default: the one with the strongest keyed tone)', numberIn('--channel', 1, 64, { integer: true }))
     .option('--json', 'print { text, wpm, toneHz, snrDb, marks, characters, warnings, … } as JSON on stdout')
+    .addOption(new Option('--raw <encoding>', 'headerless PCM input: s16le or f32le, interleaved (needs --rate)').argParser(oneOf('--raw', RAW_ENCODINGS)))
+    .option('--rate <hz>', 'raw PCM sample rate (Hz, 8000–192000)', numberIn('--rate', 8000, 192_000, { integer: true }))
+    .option('--channels <n>', 'raw PCM channels (1–256; default 1)', numberIn('--channels', 1, 256, { integer: true }))
     .addHelpText(
       'after',
       `
@@ -75,37 +84,27 @@ and a confidence 0…1. Unknown patterns print as *. Silence or noise is not an 
 empty and a warning says no keyed signal was found.`,
     )
     .action(async (file: string, o: DecodeCliOptions) => {
-      const audio = await readWavFile(file);
-      let index = 0;
-      let channelNote: string | null = null;
-      if (o.channel !== undefined) {
-        if (o.channel > audio.channels.length) {
-          throw new InputError(`${file}: --channel ${o.channel} does not exist (the file has ${audio.channels.length} channel${audio.channels.length === 1 ? '' : 's'})`);
-        }
-        index = o.channel - 1;
-      } else if (audio.channels.length > 1) {
-        const pick = pickChannel(audio.channels, audio.sampleRate);
-        index = pick.index;
-        channelNote = `using ${pick.reason}`;
+      const audio = await openAudio(file, { raw: o.raw, rate: o.rate, channels: o.channels, stdin: ctx.io.stdin });
+      if (o.channel !== undefined && o.channel > audio.channelCount) {
+        const n = audio.channelCount;
+        throw new InputError(`${audio.name}: --channel ${o.channel} does not exist (the ${file === '-' ? 'input' : 'file'} has ${n} channel${n === 1 ? '' : 's'})`);
       }
       if (o.tone !== undefined && o.tone >= audio.sampleRate / 2) {
         throw new InputError(`--tone must be below half the sample rate, ${audio.sampleRate / 2} Hz (got ${o.tone})`);
       }
-      const showProgress = Boolean(ctx.io.stderr.isTTY) && !o.json;
-      let shown = -1;
-      const result = decodeSamples(audio.channels[index]!, audio.sampleRate, {
+      // stdin: text as it is decoded (a character at a time, lines broken at word gaps); files: at the end.
+      const live = file === '-' && !o.json ? followText((s) => ctx.io.stdout.write(s)) : null;
+      const bar = createProgress(ctx.io, { label: audio.name, audioSeconds: audio.durationMs === null ? null : audio.durationMs / 1000 });
+      const { result, channel, channelNote } = await decodeAudioSource(audio, {
         toneHz: o.tone,
-        onProgress: showProgress
-          ? (f) => {
-              const pct = Math.floor(f * 100);
-              if (pct !== shown && pct % 5 === 0) {
-                shown = pct;
-                ctx.io.stderr.write(`\rkeyform: decoding ${String(pct).padStart(3)} %`);
-              }
-            }
-          : undefined,
+        channel: o.channel === undefined ? undefined : o.channel - 1,
+        onText: live?.write,
+        onProgress: o.json ? undefined : (f) => bar.update(f),
       });
-      if (showProgress) ctx.io.stderr.write('\r\x1b[K');
+      bar.done();
+      live?.end();
+      const index = channel;
+      for (const w of audio.warnings) ctx.warn(w);
       if (channelNote) ctx.warn(channelNote);
       for (const w of result.warnings) ctx.warn(w);
       if (o.json) {
@@ -115,11 +114,11 @@ empty and a warning says no keyed signal was found.`,
               sampleRate: audio.sampleRate,
               encoding: audio.encoding,
               channel: index + 1,
-              channels: audio.channels.length,
+              channels: audio.channelCount,
             }),
           ),
         );
-      } else {
+      } else if (!live) {
         ctx.io.stdout.write(result.text + '\n');
       }
       ctx.warn(decodeSummary(result));
