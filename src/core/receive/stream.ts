@@ -4,6 +4,7 @@ import { Assembler, type DecodedCharacter } from './assemble.js';
 import { estimateTimingCandidates, type TimingEstimate } from './estimate-timing.js';
 import { Mixer } from './mixer.js';
 import { LevelSlicer } from './slicer.js';
+import { SnrEstimator } from './snr.js';
 import { findTone } from './tone.js';
 import { buildCodeTrie, type CodeTrie } from './trie.js';
 import { SequenceDecoder, type DurationModel, type Segment } from './viterbi.js';
@@ -121,7 +122,8 @@ export class StreamDecoder {
   private fllMag = 0;
   private lagSlots = 0;
   private model: DurationModel | null = null;
-  private stats = { markPow: 0, markSlots: 0, gapPow: 0, gapSlots: 0, unitSum: 0, unitCount: 0, letterGapSum: 0, letterGapCount: 0 };
+  private snr = new SnrEstimator();
+  private stats = { unitSum: 0, unitCount: 0, letterGapSum: 0, letterGapCount: 0 };
   private envValues: number[] = [];
   private envThreshold: number[] = [];
   private envDecim = 1;
@@ -526,12 +528,12 @@ export class StreamDecoder {
       for (let k = s.startSlot + 2; k <= s.endSlot - 1; k++) {
         const i = k % H;
         const p = this.zRe[i]! ** 2 + this.zIm[i]! ** 2;
-        if (s.kind === 'mark') { st.markPow += p; st.markSlots++; } else { st.gapPow += p; st.gapSlots++; }
+        if (s.kind === 'mark') this.snr.addMark(p);
+        else this.snr.addGap(p);
       }
     } else {
       const i = s.endSlot % H;
-      st.gapPow += this.zRe[i]! ** 2 + this.zIm[i]! ** 2;
-      st.gapSlots++;
+      this.snr.addGap(this.zRe[i]! ** 2 + this.zIm[i]! ** 2);
     }
     const m = this.model!;
     const a = 0.12;
@@ -605,16 +607,12 @@ export class StreamDecoder {
       }
     }
     let snrDb: number | null = null;
-    if (st.markSlots > 0 && st.gapSlots > 0) {
-      const noise = st.gapPow / st.gapSlots;
-      const carrier = st.markPow / st.markSlots - noise;
+    const ratio = this.snr.ratio();
+    if (ratio !== null) {
       const n = this.framesPerSlot * this.mixer.samplesPerFrame;
       // A slot sums n samples of x·e^(−jωt)/spf: a sine of amplitude a gives |z|² = (a·k/2)², white
       // noise of variance v gives k·v/spf. Carrier power a²/2 over noise v·2500/(fs/2) [analytic].
-      if (carrier > 0 && noise > 0) {
-        const ratio = (2 * carrier * this.sampleRate) / (noise * n * 2 * SNR_BANDWIDTH_HZ);
-        snrDb = Math.round(10 * Math.log10(ratio) * 10) / 10;
-      }
+      snrDb = Math.round(10 * Math.log10((ratio * this.sampleRate) / (n * SNR_BANDWIDTH_HZ)) * 10) / 10;
     }
     if (a.characters.length === 0) warnings.push('no keyed signal found (a tone, but no characters could be decoded)');
     if (a.characters.some((c) => c.text === '*')) warnings.push('some patterns are not known characters (printed as *)');
