@@ -113,14 +113,19 @@ export async function openAudio(pathOrDash: string, options: OpenAudioOptions = 
   // Read until the header is known; keep the audio those first blocks held (at most one block).
   const early: Float32Array[][] = [];
   let ended = false;
-  while (parser instanceof WavStreamParser && parser.format === null) {
-    const r = await blocks.next();
-    if (r.done) {
-      ended = true;
-      parser.finish(); // throws the right message (empty, not a WAV, no fmt, no data)
-      break;
+  try {
+    while (parser instanceof WavStreamParser && parser.format === null) {
+      const r = await blocks.next();
+      if (r.done) {
+        ended = true;
+        parser.finish(); // throws the right message (empty, not a WAV, no fmt, no data)
+        break;
+      }
+      early.push(...parser.push(r.value));
     }
-    early.push(...parser.push(r.value));
+  } catch (err) {
+    await blocks.return?.(); // close the file now, not at garbage collection
+    throw err;
   }
   const format = parser.format!;
   let durationMs: number | null = null;
