@@ -4,6 +4,8 @@ import { fileURLToPath } from 'node:url';
 import type { Command } from 'commander';
 import { planKeying } from '../../core/timing/plan.js';
 import { analyzeRecording } from '../analyze-recording.js';
+import { planToJson } from '../../io/export.js';
+import { formatJson } from '../../io/json.js';
 import type { CommandContext } from '../io.js';
 import { runUi } from './ui.js';
 
@@ -16,12 +18,23 @@ export function demoFolder(): string {
   return resolve(dirname(fileURLToPath(import.meta.url)), '../../../recordings');
 }
 
+function wavFiles(folder: string): string[] {
+  return readdirSync(folder).filter((f) => f.toLowerCase().endsWith('.wav')).sort();
+}
+
 /**
  * The tour `npm start` runs: on a terminal, the interactive app on the demo recordings; elsewhere
  * (a pipe, CI) a plain summary — the demo beacon's plan, then each demo recording read back.
  */
-export async function runDemo(ctx: CommandContext): Promise<number> {
+export async function runDemo(ctx: CommandContext, options: { json?: boolean } = {}): Promise<number> {
   const folder = demoFolder();
+  if (options.json) {
+    const plan = planKeying(DEMO_BEACON, { wpm: 18 });
+    const rows = [];
+    for (const f of wavFiles(folder)) rows.push(await analyzeRecording(join(folder, f), {}));
+    ctx.io.stdout.write(formatJson({ plan: planToJson(plan), recordings: rows }));
+    return 0;
+  }
   if (ctx.io.stdout.isTTY && ctx.io.stdin.isTTY) return runUi(ctx, folder);
   const out = (s: string): void => void ctx.io.stdout.write(s + '\n');
   const plan = planKeying(DEMO_BEACON, { wpm: 18 });
@@ -29,8 +42,7 @@ export async function runDemo(ctx: CommandContext): Promise<number> {
     `${plan.marks.length} marks, ${(plan.totalMs / 1000).toFixed(2)} s  (keyform encode "${DEMO_BEACON}" --wpm 18)`);
   out('');
   out(`Read back and shape of the demo recordings in ${folder}/ (keyform batch ${folder}):`);
-  const files = readdirSync(folder).filter((f) => f.toLowerCase().endsWith('.wav')).sort();
-  for (const f of files) {
+  for (const f of wavFiles(folder)) {
     const row = await analyzeRecording(join(folder, f), {});
     const figures = [
       row.wpm !== null ? `${row.wpm.toFixed(1)} wpm` : null,
@@ -53,7 +65,8 @@ export function registerDemo(program: Command, ctx: CommandContext): void {
   program
     .command('demo')
     .description('the tour: the interactive app on the demo recordings (a plain summary when not on a terminal)')
-    .action(async () => {
-      ctx.setExitCode(await runDemo(ctx));
+    .option('--json', 'print the demo plan and the read-back rows as JSON (never opens the app)')
+    .action(async (o: { json?: boolean }) => {
+      ctx.setExitCode(await runDemo(ctx, o));
     });
 }
