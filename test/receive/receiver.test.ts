@@ -191,6 +191,26 @@ describe('decoder', () => {
     expect(r.warnings.join(' ')).toMatch(/not known characters/);
   });
 
+  it('keeps an unknown run longer than six elements as one *, and 8 dots as <HH>', () => {
+    const u = 60;
+    const marks: Interval[] = [];
+    let t = 0;
+    const send = (pattern: string): void => {
+      for (const el of pattern) {
+        const len = el === '-' ? 3 * u : u;
+        marks.push([t, t + len]);
+        t += len + u;
+      }
+      t += 2 * u;
+    };
+    // Q, an unknown run of 7, E, the error signal (8 dots, a prosign in ITU-R M.1677-1), an unknown
+    // run of 9 dots, and T.
+    for (const p of ['--.-', '-.-.-.-', '.', '........', '.........', '-']) send(p);
+    const r = decodeSamples(keyed(marks), RATE);
+    expect(r.text).toBe('Q*E<HH>*T');
+    expect(r.characters.map((c) => c.pattern)).toEqual(['--.-', '-.-.-.-', '.', '........', '.........', '-']);
+  });
+
   it('reports no keyed signal for silence and for an empty input', () => {
     for (const x of [new Float32Array(0), new Float32Array(RATE * 3)]) {
       const r = decodeSamples(x, RATE);

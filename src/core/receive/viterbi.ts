@@ -98,6 +98,9 @@ export class SequenceDecoder {
   private readonly bestCharNode: Int16Array;
   private readonly charPrior: Float64Array;
   private readonly llr: Float64Array;
+  /** Per slot: the best element-gap state a long dot / long dash may follow, and its score. */
+  private readonly longSrcScore: [Float64Array, Float64Array];
+  private readonly longSrcState: [Int16Array, Int16Array];
   private blockSlots = 4;
   private minWeakSlots = 3;
   private tables!: { dit: DurationTable; dah: DurationTable; egap: DurationTable; lgap: DurationTable; wgap: DurationTable };
@@ -132,6 +135,8 @@ export class SequenceDecoder {
     this.charPrior = new Float64Array(this.n);
     for (let i = 1; i < this.n; i++) this.charPrior[i] = trie.text[i] !== null ? CHAR_PRIOR : CHAR_PRIOR + UNKNOWN_PENALTY;
     this.llr = new Float64Array(H);
+    this.longSrcScore = [new Float64Array(H).fill(NEG), new Float64Array(H).fill(NEG)];
+    this.longSrcState = [new Int16Array(H).fill(-1), new Int16Array(H).fill(-1)];
     this.rowBase = new Int32Array(H);
     this.lastAlive = new Int32Array(this.nStates).fill(-1_000_000);
     this.lastAlive[this.stS] = 0;
@@ -196,6 +201,7 @@ export class SequenceDecoder {
     for (let node = 1; node < n; node++) {
       const table = symbol[node] === 1 ? dah : dit;
       const p = parent[node]!;
+      if (p < 0) continue; // a long node: below
       if ((p === 0 ? rootAlive : lastAlive[n + p]!) < t - table.max) continue;
       const hi = Math.min(table.max, t);
       let best = NEG;
@@ -216,6 +222,28 @@ export class SequenceDecoder {
         if (src <= NEG) continue;
         const v = src + llr[d]! + table.logP[d]!;
         if (v > best) { best = v; bestD = d; bestPrev = srcState; }
+      }
+      if (bestPrev >= 0) {
+        score[base + node] = best;
+        bpDur[base + node] = bestD;
+        bpPrev[base + node] = bestPrev;
+      }
+    }
+    // Long nodes (unknown runs past the tree's depth): from the best element gap that may lead to them.
+    for (let kind = 0; kind < 2; kind++) {
+      const node = kind === 0 ? this.trie.longDot : this.trie.longDash;
+      const table = kind === 0 ? dit : dah;
+      const srcScore = this.longSrcScore[kind]!;
+      const srcState = this.longSrcState[kind]!;
+      const hi = Math.min(table.max, t);
+      let best = NEG;
+      let bestD = 0;
+      let bestPrev = -1;
+      for (let d = table.min; d <= hi; d++) {
+        const src = srcScore[(t - d) & M]!;
+        if (src <= NEG) continue;
+        const v = src + llr[d]! + table.logP[d]!;
+        if (v > best) { best = v; bestD = d; bestPrev = srcState[(t - d) & M]!; }
       }
       if (bestPrev >= 0) {
         score[base + node] = best;
@@ -280,6 +308,18 @@ export class SequenceDecoder {
       if (v < floor) score[base + s] = NEG;
       else lastAlive[s] = t;
     }
+    // Where a long dot / long dash could start after this slot.
+    for (let kind = 0; kind < 2; kind++) {
+      const parents = kind === 0 ? this.trie.longDotParents : this.trie.longDashParents;
+      let bs = NEG;
+      let bState = -1;
+      for (let i = 0; i < parents.length; i++) {
+        const v = score[base + n + parents[i]!]!;
+        if (v > bs) { bs = v; bState = n + parents[i]!; }
+      }
+      this.longSrcScore[kind]![ti] = bs;
+      this.longSrcState[kind]![ti] = bState;
+    }
     // Best character ending at this slot, for the gaps that will close it.
     let bc = NEG;
     let bcNode = -1;
@@ -298,6 +338,7 @@ export class SequenceDecoder {
       if (top > NEG) {
         for (let k = 0; k < H * S; k++) if (score[k]! > NEG) score[k] = score[k]! - top;
         for (let k = 0; k < H; k++) if (this.bestChar[k]! > NEG) this.bestChar[k] = this.bestChar[k]! - top;
+        for (const ring of this.longSrcScore) for (let k = 0; k < H; k++) if (ring[k]! > NEG) ring[k] = ring[k]! - top;
       }
     }
   }
