@@ -30,7 +30,10 @@ export interface BatchRow {
   occupiedBandwidthHz: number | null;
   /** Timing jitter [% of a unit] (timing report). */
   jitterPct: number | null;
-  /** `ok`, `no signal`, `mask fail` (the keyed spectrum exceeds the shape mask) or `error`. */
+  /**
+   * `ok`, `no signal`, `mask fail` (the keyed spectrum exceeds the shape mask), `not judged` (decoded,
+   * but too noisy for the shape analysis to judge the mask: rise and bandwidth are null) or `error`.
+   */
   verdict: BatchVerdict;
   /** One-line reason when verdict is `error`. */
   error: string | null;
@@ -38,7 +41,7 @@ export interface BatchRow {
   warnings: string[];
 }
 
-export type BatchVerdict = 'ok' | 'no signal' | 'mask fail' | 'error';
+export type BatchVerdict = 'ok' | 'no signal' | 'mask fail' | 'not judged' | 'error';
 
 /** Column order of the report files. */
 export const BATCH_COLUMNS: readonly (keyof BatchRow)[] = [
@@ -212,7 +215,7 @@ export async function analyzeRecording(path: string, options: AnalyzeOptions = {
   const row = errorRow(path, null);
   try {
     await analyzeInto(row, path, options);
-    row.verdict = row.text.trim() === '' ? 'no signal' : row.verdict === 'mask fail' ? 'mask fail' : 'ok';
+    row.verdict = row.text.trim() === '' ? 'no signal' : row.verdict === 'mask fail' || row.verdict === 'not judged' ? row.verdict : 'ok';
   } catch (err) {
     row.verdict = 'error';
     row.error = errorLine(err);
@@ -246,11 +249,15 @@ async function analyzeInto(row: BatchRow, path: string, options: AnalyzeOptions)
       const report = measureShape(excerpt, sampleRate, {
         toneHz: result.toneHz ?? options.toneHz,
         unitMs: result.unitMs ?? undefined,
+        // The receiver has run already: its marks give the shape analysis its SNR estimate.
+        timing: { marks: result.marks, unitMs: result.unitMs ?? null },
         findShortestRise: false,
       });
-      row.riseMs = round(report.riseMs.median, 2);
-      row.occupiedBandwidthHz = round(report.occupiedBandwidthHz, 0);
-      if (!report.mask.pass) row.verdict = 'mask fail';
+      // Null where the shape report could not stand behind the figure (too noisy).
+      row.riseMs = report.measurable.edges ? round(report.riseMs.median, 2) : null;
+      row.occupiedBandwidthHz = report.measurable.spectrum ? round(report.occupiedBandwidthHz, 0) : null;
+      if (report.mask.pass === false) row.verdict = 'mask fail';
+      else if (report.mask.pass === null) row.verdict = 'not judged';
       row.warnings.push(...report.warnings.map((w) => `shape: ${w}`));
     } catch (err) {
       row.warnings.push(`shape: ${errorLine(err)}`);

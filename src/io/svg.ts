@@ -132,7 +132,7 @@ export function shapeSvg(report: ShapeReport): string {
     ['#1f4e9c', 'spectrum'],
     ['#8e44ad', `necessary bandwidth ${report.necessaryBandwidthHz !== null ? `${fmt(report.necessaryBandwidthHz)} Hz (SM.1138)` : 'unknown'}`],
     ['#cfe8cf', `occupied (99 %) ${report.occupiedBandwidthHz !== null ? `${fmt(report.occupiedBandwidthHz)} Hz` : 'unknown'}`],
-    ['#c0392b', `mask: ${report.mask.pass ? 'pass' : 'FAIL'}`],
+    ['#c0392b', `mask: ${report.mask.pass === null ? 'not judged' : report.mask.pass ? 'pass' : 'FAIL'}`],
   ];
   legend.forEach(([color, label], i) => {
     const y = s1.top + 16 + i * 16;

@@ -3,6 +3,7 @@ import { InputError } from '../../core/errors.js';
 import { EDGE_KINDS, type EdgeKind } from '../../core/signal/edges.js';
 import { parseMaskCsv, type SpectralMask } from '../../core/measure/mask.js';
 import { CAUTION, FILTER_NOTE, measureShape, predictShape, sweepRise, type ShapeReport, type SweepResult } from '../../core/measure/shape.js';
+import { MIN_EDGE_SNR_DB, MIN_SPECTRUM_SNR_DB } from '../../core/measure/shape-snr.js';
 import { readInputFile, writeOutputFile } from '../../io/files.js';
 import { formatJson } from '../../io/json.js';
 import { shapeSvg } from '../../io/svg.js';
@@ -39,6 +40,14 @@ export function formatShapeReport(r: ShapeReport, color: boolean): string {
   const L: string[] = [];
   L.push(bold(`Keying shape (${r.kind === 'predicted' ? 'predicted from the plan and the synthesizer' : 'measured'})`));
   L.push(`  tone ${f(r.toneHz, 1)} Hz · ${r.sampleRate} Hz sampling · ${(r.durationMs / 1000).toFixed(2)} s · ${r.marks.found} marks, ${r.marks.measured} measured`);
+  const ms = r.measurable;
+  if (r.kind === 'measured') {
+    const left = !ms.edges ? 'edges and spectral figures left out' : !ms.spectrum ? 'spectral figures left out' : 'enough for every figure';
+    L.push(
+      `  SNR ${ms.snrDb === null ? '–' : `${f(ms.snrDb)} dB`} (key-down carrier over noise in 2500 Hz, from the ${ms.timingSource}'s marks; ` +
+        `edges need ${ms.minEdgeSnrDb} dB, spectrum ${ms.minSpectrumSnrDb} dB): ${left}`,
+    );
+  }
   L.push('');
   L.push(bold('Edges (10–90 % of each mark\'s settled level)'));
   L.push(`  rise  median ${f(r.riseMs.median, 2)} ms   p10 ${f(r.riseMs.p10, 2)}   p90 ${f(r.riseMs.p90, 2)}`);
@@ -50,7 +59,7 @@ export function formatShapeReport(r: ShapeReport, color: boolean): string {
   L.push(bold('Spectrum'));
   L.push(`  ${r.spectrum.reference}`);
   L.push(`  occupied bandwidth (99 %, ITU-R SM.328)  ${hz(r.occupiedBandwidthHz)}` + (r.occupiedBandEdgesHz ? `   (${f(r.occupiedBandEdgesHz.lowerHz)} … +${f(r.occupiedBandEdgesHz.upperHz)} Hz)` : ''));
-  if (r.noiseCorrection.applied && (r.spectrum.noiseFloorDbc ?? -200) > -150) {
+  if (r.noiseCorrection.applied && r.occupiedBandwidthHz !== null && (r.spectrum.noiseFloorDbc ?? -200) > -150) {
     L.push(`  noise floor ${f(r.spectrum.noiseFloorDbc)} dBc per bin, removed first: without that the figure would read ${hz(r.noiseCorrection.uncorrectedHz)} (${f(r.noiseCorrection.correctionPct)} % wider)`);
   }
   for (const x of ['20', '40', '60'] as const) {
@@ -66,11 +75,12 @@ export function formatShapeReport(r: ShapeReport, color: boolean): string {
   L.push('');
   const m = r.mask;
   L.push(bold(`Spectral mask: ${m.name}`));
-  L.push(`  ${verdictColor(m.pass ? 'PASS' : 'FAIL', m.pass)}` + (m.worstExcessDb !== null ? `   (worst ${m.worstExcessDb > 0 ? 'excess' : 'margin'} ${f(Math.abs(m.worstExcessDb))} dB)` : ''));
+  if (m.pass === null) L.push(`  NOT JUDGED: ${m.note?.replace(/^not judged: /, '') ?? 'no verdict'}`);
+  else L.push(`  ${verdictColor(m.pass ? 'PASS' : 'FAIL', m.pass)}` + (m.worstExcessDb !== null ? `   (worst ${m.worstExcessDb > 0 ? 'excess' : 'margin'} ${f(Math.abs(m.worstExcessDb))} dB)` : ''));
   for (const v of m.violations) {
     L.push(`  over by ${f(v.excessDb)} dB at ${v.offsetHz > 0 ? '+' : ''}${f(v.offsetHz, 0)} Hz: ${f(v.measuredDbc)} dBc against ${f(v.limitDbc)} dBc (mask point ±${v.pointOffsetHz} Hz)`);
   }
-  if (m.noiseLimitedPointsHz.length > 0) {
+  if (m.noiseLimitedPointsHz.length > 0 && r.measurable.spectrum) {
     L.push(`  below the recording's noise floor, not checked: the stretch from ±${m.noiseLimitedPointsHz.join(', ±')} Hz (record at a higher level or closer to the transmitter)`);
   }
   if (m.uncheckedPointsHz.length > 0) L.push(`  not checked (outside the analysed span): ±${m.uncheckedPointsHz.join(', ±')} Hz`);
@@ -136,7 +146,9 @@ Examples:
   keyform shape --predict --wpm 25 --rise 5 --edge raised-cosine
   keyform shape --predict --sweep --wpm 30 --edge linear
 
-Exit status 1 when the spectrum exceeds the mask.
+Exit status 1 when the spectrum exceeds the mask (not when the recording is too noisy to judge it).
+Below ${MIN_EDGE_SNR_DB} dB SNR (key-down carrier over noise in 2500 Hz) rise, fall, overshoot and chirp are left out;
+below ${MIN_SPECTRUM_SNR_DB} dB the bandwidths, click levels and the mask verdict too ("not judged").
 Record through a wide filter (2.4 kHz or more) or take the sidetone: a receiver's CW filter lengthens edges.
 Caution: ${CAUTION}`,
     )
@@ -187,7 +199,7 @@ Caution: ${CAUTION}`,
         }
         if (o.json) ctx.io.stdout.write(formatJson(sweep ? { ...report, sweep } : report));
         else ctx.io.stdout.write(formatShapeReport(report, ctx.color) + (sweep ? '\n' + formatSweep(sweep) : ''));
-        if (!report.mask.pass) ctx.setExitCode(1);
+        if (report.mask.pass === false) ctx.setExitCode(1);
       } finally {
         progress.done();
       }

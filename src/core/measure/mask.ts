@@ -110,6 +110,8 @@ export interface MaskVerdict {
   uncheckedPointsHz: number[];
   /** Mask points whose stretch lies (partly) below the recording's noise floor, where the transmitter could not be checked. */
   noiseLimitedPointsHz: number[];
+  /** Spectrum bins inside the mask that were judged: compared with the limit, or under the noise floor with the limit above it (clean). 0: no verdict possible. */
+  judgedBins: number;
 }
 
 /**
@@ -124,6 +126,7 @@ export function checkMask(offsetHz: ArrayLike<number>, dbc: ArrayLike<number>, m
   const worst: Array<MaskViolation | null> = pts.map(() => null);
   let worstExcess: number | null = null;
   let reach = 0;
+  let judged = 0;
   for (let k = 0; k < dbc.length; k++) {
     const f = offsetHz[k]!;
     const d = Math.abs(f);
@@ -135,8 +138,10 @@ export function checkMask(offsetHz: ArrayLike<number>, dbc: ArrayLike<number>, m
     // Within 3 dB of the noise floor the level is the recording's, not the transmitter's.
     if (noiseDbc && dbc[k]! < noiseDbc[k]! + 3) {
       if (limit < noiseDbc[k]! + 3) noiseLimited.add(pts[i]!.offsetHz);
+      else judged++; // under the floor, and the floor is under the limit: clean
       continue;
     }
+    judged++;
     const excess = dbc[k]! - limit;
     if (worstExcess === null || excess > worstExcess) worstExcess = excess;
     if (excess > 0 && (worst[i] === null || excess > worst[i]!.excessDb)) {
@@ -151,5 +156,6 @@ export function checkMask(offsetHz: ArrayLike<number>, dbc: ArrayLike<number>, m
     worstExcessDb: worstExcess,
     uncheckedPointsHz: pts.filter((p) => p.offsetHz > reach).map((p) => p.offsetHz),
     noiseLimitedPointsHz: [...noiseLimited].sort((a, b) => a - b),
+    judgedBins: judged,
   };
 }

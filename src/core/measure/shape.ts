@@ -16,6 +16,8 @@ import { classifyEdge, measureEdges, sortedCopy, spreadOf, traceEdges, type Edge
 import { checkMask, DEFAULT_MASK, validateMask, type MaskPoint, type MaskVerdict, type SpectralMask } from './mask.js';
 import { complexBaseband, magnitude } from './shape-analytic.js';
 import { densityAt, noiseDensityFromGaps } from './shape-noise.js';
+import { estimateShapeSnr, MIN_EDGE_SNR_DB, MIN_SPECTRUM_SNR_DB, type ShapeSnr } from './shape-snr.js';
+import { decodeSamples } from '../receive/index.js';
 import { findTonePeak, segmentLengthForRbw, welchSpectrum, type PowerSpectrum } from './spectrum.js';
 
 /** Offsets at which the click sideband level is reported [Hz]. */
@@ -52,8 +54,26 @@ export interface ClickLevel {
   upperDbc: number | null;
 }
 
+/** What the recording's SNR allows the report to say (measured reports; always measurable when predicted). */
+export interface ShapeMeasurability {
+  /** Key-down carrier power over noise in 2500 Hz, from the wide envelope [dB]; null when predicted or not estimable. */
+  snrDb: number | null;
+  /** The same against the noise in the envelope's own band [dB]. */
+  envelopeSnrDb: number | null;
+  /** Where the key-down / key-up split for the estimate came from. */
+  timingSource: 'receiver' | 'given' | 'plan';
+  /** Thresholds below which the figures are left out [dB, same convention]. */
+  minEdgeSnrDb: number;
+  minSpectrumSnrDb: number;
+  /** Rise, fall, overshoot, chirp and edge kind reported. */
+  edges: boolean;
+  /** Occupied and x-dB bandwidths, click levels and the mask verdict reported. */
+  spectrum: boolean;
+}
+
 export interface ShapeReport {
   kind: 'measured' | 'predicted';
+  measurable: ShapeMeasurability;
   sampleRate: number;
   toneHz: number;
   durationMs: number;
@@ -63,7 +83,7 @@ export interface ShapeReport {
   fallMs: Spread;
   edgeKind: EdgeKindEstimate;
   /** Every mark found: 50 % times [ms], its 10–90 % rise and fall [ms], overshoot [%], chirp [Hz], or why it was left out. */
-  perMark: Array<{ startMs: number; endMs: number; riseMs: number | null; fallMs: number | null; overshootPct: number; chirpHz: number | null; problem: string | null }>;
+  perMark: Array<{ startMs: number; endMs: number; riseMs: number | null; fallMs: number | null; overshootPct: number | null; chirpHz: number | null; problem: string | null }>;
   overshootPct: { median: number | null; worst: number | null };
   /** Tone offset from the settled tone during the first `windowMs` of each mark [Hz]. */
   chirpHz: { median: number | null; worst: number | null; windowMs: number };
@@ -87,14 +107,16 @@ export interface ShapeReport {
   bandwidthAtDbcHz: { '20': number | null; '40': number | null; '60': number | null };
   bandwidthBasis: { '20': XdbBandwidth['basis']; '40': XdbBandwidth['basis']; '60': XdbBandwidth['basis'] };
   clickDbc: ClickLevel[];
-  speed: { unitMs: number | null; wpm: number | null; modulationRateBaud: number | null; source: 'plan' | 'measured' | 'given' };
+  /** Where the unit came from: the plan, the shape's own marks, the caller, or the receiver's timing (noisy recordings). */
+  speed: { unitMs: number | null; wpm: number | null; modulationRateBaud: number | null; source: 'plan' | 'measured' | 'given' | 'receiver' };
   /** ITU-R SM.1138 necessary bandwidth Bn = B·K [Hz]. */
   necessaryBandwidthHz: number | null;
   k: number;
   designator: string | null;
   occupiedToNecessary: number | null;
   necessaryNote: string;
-  mask: MaskVerdict & { points: MaskPoint[]; shortestRiseMs: number | null; sweepEdge: EdgeKind };
+  /** `pass` is null (not judged) when the recording is too noisy for the spectral figures or no mask point could be checked; `note` says why. */
+  mask: Omit<MaskVerdict, 'pass'> & { pass: boolean | null; note: string | null; points: MaskPoint[]; shortestRiseMs: number | null; sweepEdge: EdgeKind };
   edges: EdgeTraces;
   warnings: string[];
   notes: string[];
@@ -115,6 +137,12 @@ export interface ShapeOptions {
   chirpWindowMs?: number;
   /** Envelope half band around the tone [Hz], 100…20000; default 4000, narrowed automatically for noisy recordings. */
   envelopeHalfBandHz?: number;
+  /**
+   * Key-down intervals [ms from the first sample] and unit [ms] from a receiver that has already run
+   * (e.g. batch): used for the SNR estimate and, on noisy recordings, the speed. By default
+   * measureShape runs the receiver (decodeSamples) itself.
+   */
+  timing?: { marks: Interval[]; unitMs: number | null };
   /** Called with the fraction done (0…1). */
   onProgress?: (fraction: number) => void;
 }
@@ -244,15 +272,42 @@ interface ShapeInputs {
   sampleRate: number;
   toneHz: number;
   kind: 'measured' | 'predicted';
-  unit: { unitMs: number | null; source: 'plan' | 'measured' | 'given' };
+  unit: { unitMs: number | null; source: ShapeReport['speed']['source'] };
+  /** SNR estimate (measured reports only). */
+  snr: (ShapeSnr & { timingSource: ShapeMeasurability['timingSource'] }) | null;
 }
 
-function composeReport(input: ShapeInputs, options: ShapeOptions, analysis: { edges: EdgeAnalysis; baseband: ReturnType<typeof complexBaseband> }, warnings: string[]): ShapeReport {
+function composeReport(
+  input: ShapeInputs,
+  options: ShapeOptions,
+  analysis: { edges: EdgeAnalysis; baseband: ReturnType<typeof complexBaseband>; timingMarks?: Interval[] },
+  warnings: string[],
+): ShapeReport {
   const { samples, sampleRate, toneHz } = input;
   const progress = options.onProgress ?? (() => {});
   const k = checkRange('K', options.k ?? 5, 1, 10);
   const mask = validateMask(options.mask ?? DEFAULT_MASK);
   const { edges, baseband } = analysis;
+  const snrDb = input.snr?.snrDb ?? null;
+  const edgesOk = snrDb === null || snrDb >= MIN_EDGE_SNR_DB;
+  const spectrumOk = snrDb === null || snrDb >= MIN_SPECTRUM_SNR_DB;
+  // Below the edge threshold the shape's own marks are noise bumps: the receiver's marks stand in for them.
+  const receiverMarks: Interval[] = !edgesOk && input.snr ? analysis.timingMarks ?? [] : [];
+  if (!edgesOk) {
+    warnings.push(
+      `the recording is too noisy to measure the keying shape: SNR ${snrDb!.toFixed(1)} dB (key-down carrier over noise in 2500 Hz), ` +
+        `below the ${MIN_EDGE_SNR_DB} dB needed for rise, fall, overshoot and chirp` +
+        (spectrumOk ? '' : ` and the ${MIN_SPECTRUM_SNR_DB} dB needed for the bandwidths and the mask`) +
+        ': those figures are left out (null). Record closer to the transmitter, or through an attenuator from its output',
+    );
+  } else if (!spectrumOk) {
+    warnings.push(
+      `the recording is too noisy for the spectral figures: SNR ${snrDb!.toFixed(1)} dB (key-down carrier over noise in 2500 Hz), ` +
+        `below the ${MIN_SPECTRUM_SNR_DB} dB needed for the occupied and x-dB bandwidths, click levels and the mask verdict: those are left out (null)`,
+    );
+  } else if (input.kind === 'measured' && input.snr && snrDb === null) {
+    warnings.push('the SNR could not be estimated (too little key-down or key-up time): the figures are given unchecked');
+  }
   const measured = edges.marks.filter((m) => m.rise && m.fall);
   const rises = measured.map((m) => m.rise!.rise10to90Ms);
   const falls = measured.map((m) => m.fall!.rise10to90Ms);
@@ -298,23 +353,25 @@ function composeReport(input: ShapeInputs, options: ShapeOptions, analysis: { ed
   const guardMs = 10 + 4 * (allEdges ?? 5);
   const quiet: Array<[number, number]> = [];
   let prev = 0;
-  for (const m of edges.marks) {
-    quiet.push([Math.round(prev * perMs), Math.round((m.startMs - guardMs) * perMs)]);
-    prev = m.endMs + guardMs;
+  const keyDowns = edgesOk ? edges.marks.map((m) => [m.startMs, m.endMs] as const) : receiverMarks;
+  for (const [startMs, endMs] of keyDowns) {
+    quiet.push([Math.round(prev * perMs), Math.round((startMs - guardMs) * perMs)]);
+    prev = endMs + guardMs;
   }
   quiet.push([Math.round(prev * perMs), samples.length]);
   const fig = spectralFigures(samples, sampleRate, toneHz, mask, quiet.filter(([a, b]) => b > a), (f) => progress(0.5 + 0.3 * f));
   if (!fig.noiseApplied && input.kind === 'measured') {
     warnings.push('no key-up stretch long enough to estimate the noise floor; the occupied bandwidth includes the recording\'s noise');
   }
-  const obw = fig.occupied;
-  const unObw = fig.uncorrected;
+  const obw = spectrumOk ? fig.occupied : null;
+  const unObw = spectrumOk ? fig.uncorrected : null;
   const correctionPct = obw && unObw && obw.widthHz > 0 ? ((unObw.widthHz - obw.widthHz) / obw.widthHz) * 100 : null;
 
   const unitMs = input.unit.unitMs;
   const baud = unitMs !== null ? modulationRateBaud(unitMs) : null;
   const bn = baud !== null ? necessaryBandwidthHz(baud, k) : null;
   if (unitMs === null) warnings.push('no marks to measure the speed from; necessary bandwidth not computed');
+  else if (input.unit.source === 'receiver') warnings.push(`the speed (for the necessary bandwidth) is the receiver's: unit ${unitMs.toFixed(1)} ms`);
   else if (input.unit.source === 'measured' && edges.marks.length < 4) {
     warnings.push(`the speed rests on only ${edges.marks.length} mark(s); give the unit with --wpm for a sure necessary bandwidth`);
   }
@@ -346,17 +403,31 @@ function composeReport(input: ShapeInputs, options: ShapeOptions, analysis: { ed
   }
 
   const traces = traceEdges(baseband.re.length ? magnitude(baseband) : new Float32Array(0), sampleRate, edges.marks, Math.max(2, 1.5 * (allEdges ?? 2)));
-  const xd = fig.xdb;
+  const notMeasured: XdbBandwidth = { lowerHz: null, upperHz: null, widthHz: null, basis: 'below the noise floor' };
+  const xd = spectrumOk ? fig.xdb : { '20': notMeasured, '40': notMeasured, '60': notMeasured };
+  const mask_ = maskSummary(fig.verdict, mask, spectrumOk, snrDb);
+  const lowSnrProblem = `too noisy: SNR ${snrDb?.toFixed(1)} dB, below the ${MIN_EDGE_SNR_DB} dB needed to measure edges`;
   return {
     kind: input.kind,
+    measurable: {
+      snrDb: round(snrDb, 1),
+      envelopeSnrDb: round(input.snr?.envelopeSnrDb ?? null, 1),
+      timingSource: input.snr?.timingSource ?? 'plan',
+      minEdgeSnrDb: MIN_EDGE_SNR_DB,
+      minSpectrumSnrDb: MIN_SPECTRUM_SNR_DB,
+      edges: edgesOk,
+      spectrum: spectrumOk,
+    },
     sampleRate,
     toneHz: round(toneHz, 2)!,
     durationMs: round((samples.length * 1000) / sampleRate, 1)!,
-    marks: { found: edges.marks.length, measured: measured.length },
+    marks: { found: edgesOk ? edges.marks.length : receiverMarks.length, measured: measured.length },
     riseMs: roundSpread(riseMs),
     fallMs: roundSpread(fallMs),
     edgeKind,
-    perMark: edges.marks.map((m) => ({
+    perMark: !edgesOk
+      ? receiverMarks.map(([startMs, endMs]) => ({ startMs: round(startMs, 2)!, endMs: round(endMs, 2)!, riseMs: null, fallMs: null, overshootPct: null, chirpHz: null, problem: lowSnrProblem }))
+      : edges.marks.map((m) => ({
       startMs: round(m.startMs, 2)!,
       endMs: round(m.endMs, 2)!,
       riseMs: m.rise ? round(m.rise.rise10to90Ms, 3) : null,
@@ -389,13 +460,15 @@ function composeReport(input: ShapeInputs, options: ShapeOptions, analysis: { ed
       applied: fig.noiseApplied,
       uncorrectedHz: unObw ? round(unObw.widthHz, 1) : null,
       correctionPct: fig.noiseApplied ? round(correctionPct, 2) : null,
-      note: fig.noiseApplied
+      note: !spectrumOk
+        ? 'not measured: the recording is too noisy for the occupied bandwidth'
+        : fig.noiseApplied
         ? 'the noise floor measured in the key-up stretches was subtracted before integrating the 99 % band (ITU-R SM.328)'
         : 'no noise correction',
     },
     bandwidthAtDbcHz: { '20': round(xd['20'].widthHz, 1), '40': round(xd['40'].widthHz, 1), '60': round(xd['60'].widthHz, 1) },
     bandwidthBasis: { '20': xd['20'].basis, '40': xd['40'].basis, '60': xd['60'].basis },
-    clickDbc: fig.clicks,
+    clickDbc: spectrumOk ? fig.clicks : fig.clicks.map((c) => ({ ...c, lowerDbc: null, upperDbc: null })),
     speed: { unitMs: round(unitMs, 3), wpm: round(wpm, 2), modulationRateBaud: round(baud, 3), source: input.unit.source },
     necessaryBandwidthHz: round(bn, 2),
     k,
@@ -405,11 +478,34 @@ function composeReport(input: ShapeInputs, options: ShapeOptions, analysis: { ed
       `ITU-R SM.1138: Bn = B·K for on-off keyed telegraphy, B = 1/unit = ${baud?.toFixed(2) ?? '?'} baud from the ${input.unit.source} timing, K = ${k} ` +
       `(${k === 5 ? 'fading circuit' : k === 3 ? 'non-fading circuit' : 'as given'}). The Recommendation's own example uses the traditional conversion B ≈ 0.8 × wpm ` +
       '(25 wpm → 20 baud → 100 Hz, 100HA1AAN). Keyed signals with sensible shaping usually occupy somewhat more than Bn: information, not a verdict.',
-    mask: { ...fig.verdict, worstExcessDb: round(fig.verdict.worstExcessDb, 2), violations: fig.verdict.violations.map((v) => ({ ...v, offsetHz: round(v.offsetHz, 1)!, limitDbc: round(v.limitDbc, 2)!, measuredDbc: round(v.measuredDbc, 2)!, excessDb: round(v.excessDb, 2)! })), points: mask.points, shortestRiseMs: shortest, sweepEdge },
+    mask: { ...mask_, shortestRiseMs: shortest, sweepEdge },
     edges: traces,
     warnings,
     notes: [FILTER_NOTE, CAUTION],
   };
+}
+
+/**
+ * The mask part of the report: the verdict rounded, or not judged (pass null, no violations) when the
+ * recording is too noisy for spectral figures or when no point of the mask could be checked.
+ */
+function maskSummary(v: MaskVerdict, mask: SpectralMask, spectrumOk: boolean, snrDb: number | null): Omit<ShapeReport['mask'], 'shortestRiseMs' | 'sweepEdge'> {
+  const rounded = {
+    ...v,
+    worstExcessDb: round(v.worstExcessDb, 2),
+    violations: v.violations.map((x) => ({ ...x, offsetHz: round(x.offsetHz, 1)!, limitDbc: round(x.limitDbc, 2)!, measuredDbc: round(x.measuredDbc, 2)!, excessDb: round(x.excessDb, 2)! })),
+    points: mask.points,
+  };
+  if (!spectrumOk) {
+    return {
+      ...rounded, pass: null, violations: [], worstExcessDb: null,
+      note: `not judged: SNR ${snrDb?.toFixed(1)} dB is below the ${MIN_SPECTRUM_SNR_DB} dB needed to tell the transmitter's spectrum from the recording's noise`,
+    };
+  }
+  if (v.pass && v.judgedBins === 0) {
+    return { ...rounded, pass: null, note: "not judged: no point of the mask could be checked above the recording's noise floor or within the analysed span" };
+  }
+  return { ...rounded, note: null };
 }
 
 /**
@@ -439,8 +535,10 @@ function cutEdgeWarnings(env: Float32Array, sampleRate: number): string[] {
  * Measures the keying shape of a recording of a keyed tone.
  * @param samples - Mono samples (any scale); at least 50 ms.
  * @param sampleRate - Sample rate [Hz], 8000…192000.
- * @param options - Tone, K factor, mask, unit; `onProgress(fraction)` for long recordings.
- * @returns A ShapeReport (stable JSON shape).
+ * @param options - Tone, K factor, mask, unit, the receiver's timing if already known; `onProgress(fraction)` for long recordings.
+ * @returns A ShapeReport (stable JSON shape). Below MIN_EDGE_SNR_DB the edge figures, below
+ *   MIN_SPECTRUM_SNR_DB the spectral figures are null and the mask is not judged (`mask.pass` null);
+ *   `measurable` says which, with the SNR estimated from the receiver's key-down / key-up split.
  * @example measureShape(samples, 48000, { toneHz: 700 }).riseMs.median //=> ≈ 5 for 5 ms raised-cosine edges
  */
 export function measureShape(samples: Float32Array, sampleRate: number, options: ShapeOptions = {}): ShapeReport {
@@ -459,18 +557,32 @@ export function measureShape(samples: Float32Array, sampleRate: number, options:
   }
   progress(0.05);
   const tone = toneHz;
+  // Key-down intervals from the receiver (given, or run here): it finds marks far below the SNR at which edges can be measured.
+  let timing = options.timing;
+  let timingSource: ShapeMeasurability['timingSource'] = 'given';
+  if (timing === undefined) {
+    const decoded = decodeSamples(samples, sampleRate, { toneHz: tone, onProgress: (f) => progress(0.05 + 0.15 * f) });
+    timing = { marks: decoded.marks, unitMs: decoded.marks.length > 0 ? decoded.unitMs : null };
+    timingSource = 'receiver';
+  } else {
+    // A caller's timing may cover more than these samples (batch looks at an excerpt).
+    const endMs = (samples.length * 1000) / sampleRate;
+    timing = { marks: timing.marks.filter(([a]) => a < endMs), unitMs: timing.unitMs };
+  }
   const analyse = (halfBandHz: number | undefined, p0: number, p1: number) => {
     const baseband = complexBaseband(samples, sampleRate, { toneHz: tone, halfBandHz, onProgress: (f) => progress(p0 + (p1 - p0) * f) });
     const env = magnitude(baseband);
     return { baseband, env, edges: measureEdges(env, sampleRate) };
   };
-  let best = analyse(options.envelopeHalfBandHz, 0.05, 0.25);
-  if (options.envelopeHalfBandHz === undefined && best.edges.marks.length >= 3) {
+  let best = analyse(options.envelopeHalfBandHz, 0.2, 0.3);
+  const snr = { ...estimateShapeSnr(best.baseband, sampleRate, timing.marks), timingSource };
+  const edgesOk = snr.snrDb === null || snr.snrDb >= MIN_EDGE_SNR_DB;
+  if (edgesOk && options.envelopeHalfBandHz === undefined && best.edges.marks.length >= 3) {
     // Too noisy for the wide envelope: try narrower ones, trading edge resolution for noise.
     for (const halfBandHz of NARROWER_BANDS_HZ) {
       const measuredShare = best.edges.marks.filter((m) => m.rise).length / best.edges.marks.length;
       if (measuredShare >= 0.5 || halfBandHz >= best.baseband.narrowestSideHz) continue;
-      const next = analyse(halfBandHz, 0.25, 0.35);
+      const next = analyse(halfBandHz, 0.3, 0.35);
       // Only when it finds about the same marks: a narrow envelope on noise alone finds many bumps.
       const sameMarks = Math.abs(next.edges.marks.length / best.edges.marks.length - 1) <= 0.3;
       if (sameMarks && next.edges.marks.filter((m) => m.rise).length > best.edges.marks.filter((m) => m.rise).length) {
@@ -479,14 +591,22 @@ export function measureShape(samples: Float32Array, sampleRate: number, options:
       }
     }
   }
-  const { baseband, env, edges } = best;
+  const { baseband, env } = best;
+  // Below the edge threshold the shape's own marks are noise bumps: none are kept, and their warnings say nothing useful.
+  const edges: EdgeAnalysis = edgesOk ? best.edges : { ...best.edges, marks: [], warnings: [] };
   warnings.push(...edges.warnings);
-  warnings.push(...cutEdgeWarnings(env, sampleRate));
-  if (edges.marks.length === 0) warnings.push('no marks found: rise, fall and chirp are not measured');
+  if (edgesOk) warnings.push(...cutEdgeWarnings(env, sampleRate));
+  if (edgesOk && edges.marks.length === 0) warnings.push('no marks found: rise, fall and chirp are not measured');
   let unit: ShapeInputs['unit'];
   if (options.unitMs !== undefined) unit = { unitMs: checkRange('unit', options.unitMs, 1, 2000, 'ms'), source: 'given' };
+  else if (!edgesOk) unit = { unitMs: timing.unitMs, source: 'receiver' };
   else unit = { unitMs: estimateUnitMs(edges.marks), source: 'measured' };
-  return composeReport({ samples, sampleRate, toneHz, kind: 'measured', unit }, { ...options, onProgress: (f) => progress(0.35 + 0.65 * f) }, { edges, baseband }, warnings);
+  return composeReport(
+    { samples, sampleRate, toneHz, kind: 'measured', unit, snr },
+    { ...options, onProgress: (f) => progress(0.35 + 0.65 * f) },
+    { edges, baseband, timingMarks: timing.marks },
+    warnings,
+  );
 }
 
 export interface PredictOptions extends Omit<ShapeOptions, 'toneHz' | 'unitMs'> {
@@ -539,7 +659,7 @@ export function predictShape(options: PredictOptions): ShapeReport {
   const edges = measureEdges(magnitude(baseband), PREDICT_SAMPLE_RATE);
   const warnings = [...edges.warnings];
   return composeReport(
-    { samples, sampleRate: PREDICT_SAMPLE_RATE, toneHz: PREDICT_TONE_HZ, kind: 'predicted', unit: { unitMs, source: 'plan' } },
+    { samples, sampleRate: PREDICT_SAMPLE_RATE, toneHz: PREDICT_TONE_HZ, kind: 'predicted', unit: { unitMs, source: 'plan' }, snr: null },
     { ...options, onProgress: (f) => progress(0.3 + 0.7 * f) },
     { edges, baseband },
     warnings,
