@@ -62,12 +62,29 @@ export interface MarkChirp {
  * @example measureChirp(bb, 48000, edges.marks)[0].chirpHz //=> ≈ 30 for a 30 Hz pull at key-down
  */
 export function measureChirp(bb: Baseband, sampleRate: number, marks: readonly MarkShape[], options: ChirpOptions = {}): MarkChirp[] {
+  return chirpFromTracks(chirpTracks(bb, sampleRate, marks, options), options);
+}
+
+/** One mark's frequency track after key-down: deviation from its settled tone every averageMs/2 [Hz], null where not looked at. */
+export interface ChirpTrack {
+  startMs: number;
+  settled: number;
+  d: Array<number | null>;
+}
+
+/**
+ * The per-mark tracks measureChirp chooses its instant from; tracks of several stretches of a long
+ * recording can be joined (with `offsetMs` putting their times on the recording's clock) and passed
+ * to chirpFromTracks together.
+ * @example chirpTracks(bb, 48000, edges.marks).length //=> the number of marks with a measured rise and fall
+ */
+export function chirpTracks(bb: Baseband, sampleRate: number, marks: readonly MarkShape[], options: ChirpOptions = {}, offsetMs = 0): ChirpTrack[] {
   const windowMs = checkRange('chirp window', options.windowMs ?? 10, 0.5, 200, 'ms');
   const averageMs = checkRange('chirp average', options.averageMs ?? 1, 0.1, 10, 'ms');
   const perMs = sampleRate / 1000;
   const stepMs = averageMs / 2;
   const steps = Math.floor(windowMs / stepMs) + 1;
-  const tracks: Array<{ startMs: number; settled: number; d: Array<number | null> }> = [];
+  const tracks: ChirpTrack[] = [];
   for (const m of marks) {
     if (!m.rise || !m.fall) continue;
     const a = m.rise.at50Ms;
@@ -90,8 +107,19 @@ export function measureChirp(bb: Baseband, sampleRate: number, marks: readonly M
       const f = meanFrequencyHz(bb, sampleRate, c - (averageMs / 2) * perMs, c + (averageMs / 2) * perMs);
       d.push(f === null ? null : f - settled);
     }
-    tracks.push({ startMs: a, settled, d });
+    tracks.push({ startMs: a + offsetMs, settled, d });
   }
+  return tracks;
+}
+
+/**
+ * Chooses the instant where the mean track deviates most and reports each mark's deviation there.
+ * @example chirpFromTracks(chirpTracks(bb, 48000, marks))[0].chirpHz //=> ≈ 30 for a 30 Hz pull at key-down
+ */
+export function chirpFromTracks(tracks: readonly ChirpTrack[], options: Pick<ChirpOptions, 'windowMs' | 'averageMs'> = {}): MarkChirp[] {
+  const windowMs = options.windowMs ?? 10;
+  const stepMs = (options.averageMs ?? 1) / 2;
+  const steps = Math.floor(windowMs / stepMs) + 1;
   let bestJ = -1;
   let bestAbs = -1;
   for (let j = 0; j < steps; j++) {

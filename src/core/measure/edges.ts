@@ -33,8 +33,23 @@ export interface MarkShape {
   problem: string | null;
 }
 
+/** What the mark finder saw, as counts (so that the analyses of several stretches can be added up). */
+export interface EdgeCounts {
+  /** Key-down runs shorter than the shortest mark, ignored. */
+  bumps: number;
+  /** Marks kept (the length of `marks`). */
+  kept: number;
+  tooShort: number;
+  tooNoisy: number;
+  /** The envelope ends during a key-down (that mark is left out). */
+  endsInMark: boolean;
+  /** On and off levels differ by less than 10 dB: no marks looked for. */
+  noKeyDown: boolean;
+}
+
 export interface EdgeAnalysis {
   marks: MarkShape[];
+  counts: EdgeCounts;
   /** Level that separated key-down from key-up (50 % between the 5th and 95th percentile). */
   thresholdLevel: number;
   /** 95th-percentile envelope level (key-down) and 5th-percentile level (key-up). */
@@ -187,6 +202,30 @@ function measureEdge(
 export interface EdgeOptions {
   /** Smallest key-down to consider [ms], 0.1…1000; shorter bumps are ignored. Default 2 ms. */
   minMarkMs?: number;
+  /**
+   * Keep only marks (and count only bumps) whose key-down lies in [keepFromMs, keepToMs) of this
+   * envelope [ms]; the others still serve as neighbours. For analysing a long recording in
+   * overlapping stretches. Default: all.
+   */
+  keepFromMs?: number;
+  keepToMs?: number;
+}
+
+/**
+ * The warnings that go with a mark finder's counts.
+ * @example edgeWarnings({ bumps: 3, kept: 10, tooShort: 0, tooNoisy: 0, endsInMark: false, noKeyDown: false }, 2) //=> ['3 key-down bumps shorter than 2 ms ignored']
+ */
+export function edgeWarnings(c: EdgeCounts, minMarkMs = 2): string[] {
+  const out: string[] = [];
+  if (c.noKeyDown && c.kept === 0) {
+    out.push('no clear key-down: the signal is too weak or too noisy to find marks (on/off levels differ by less than 10 dB)');
+    return out;
+  }
+  if (c.endsInMark) out.push('the recording ends during a mark; that mark is left out');
+  if (c.bumps > 0) out.push(`${c.bumps} key-down bumps shorter than ${minMarkMs} ms ignored`);
+  if (c.tooShort > 0) out.push(`${c.tooShort} of ${c.kept} marks too short to reach a settled level; their edges are left out`);
+  if (c.tooNoisy > 0) out.push(`${c.tooNoisy} of ${c.kept} marks too noisy to measure (plateau noise above 5 % of the step)`);
+  return out;
 }
 
 /**
@@ -203,6 +242,10 @@ export function measureEdges(env: Float32Array, sampleRate: number, options: Edg
   const msPerSample = 1000 / sampleRate;
   const warnings: string[] = [];
   const N = env.length;
+  const keepFrom = (options.keepFromMs ?? -Infinity) / msPerSample;
+  const keepTo = (options.keepToMs ?? Infinity) / msPerSample;
+  const inKeep = (i: number): boolean => i >= keepFrom && i < keepTo;
+  const counts: EdgeCounts = { bumps: 0, kept: 0, tooShort: 0, tooNoisy: 0, endsInMark: false, noKeyDown: false };
   // Levels from a decimated sorted copy (bounded cost on long recordings).
   const stride = Math.max(1, Math.floor(N / 200_000));
   const pick: number[] = [];
@@ -212,9 +255,10 @@ export function measureEdges(env: Float32Array, sampleRate: number, options: Edg
   const offLevel = percentile(pick, 0.05);
   const threshold = offLevel + 0.5 * (onLevel - offLevel);
   const hyst = 0.1 * (onLevel - offLevel);
-  const result: EdgeAnalysis = { marks: [], thresholdLevel: threshold, onLevel, offLevel, warnings };
+  const result: EdgeAnalysis = { marks: [], counts, thresholdLevel: threshold, onLevel, offLevel, warnings };
   if (!(onLevel > 0) || onLevel < 3 * offLevel) {
-    warnings.push('no clear key-down: the signal is too weak or too noisy to find marks (on/off levels differ by less than 10 dB)');
+    counts.noKeyDown = true;
+    warnings.push(...edgeWarnings(counts, minMarkMs));
     return result;
   }
 
@@ -236,14 +280,13 @@ export function measureEdges(env: Float32Array, sampleRate: number, options: Edg
       runs.push([start, j]);
     }
   }
-  if (down) warnings.push('the recording ends during a mark; that mark is left out');
+  counts.endsInMark = down && inKeep(start);
   const minLen = minMarkMs / msPerSample;
   const kept = runs.filter(([a, b]) => b - a >= minLen);
-  if (kept.length < runs.length) warnings.push(`${runs.length - kept.length} key-down bumps shorter than ${minMarkMs} ms ignored`);
+  counts.bumps = runs.filter(([a, b]) => b - a < minLen && inKeep(a)).length;
 
-  let tooShort = 0;
-  let tooNoisy = 0;
   kept.forEach(([a, b], m) => {
+    if (!inKeep(a)) return;
     const prevEnd = m > 0 ? kept[m - 1]![1] : 0;
     const nextStart = m + 1 < kept.length ? kept[m + 1]![0] : N;
     const D = b - a;
@@ -278,7 +321,7 @@ export function measureEdges(env: Float32Array, sampleRate: number, options: Edg
     result.marks.push(mark);
     if (!(span > 0) || plateauNoise > 0.05) {
       mark.problem = 'too noisy';
-      tooNoisy++;
+      counts.tooNoisy++;
       return;
     }
     const riseEdge = measureEdge(env, a, baseBefore, settled, true, Math.max(0, prevEnd + Math.floor(gapBefore / 2)), a + Math.floor(D / 2), msPerSample);
@@ -291,14 +334,14 @@ export function measureEdges(env: Float32Array, sampleRate: number, options: Edg
       fallEdge.at50Ms - (fallEdge.levelTimesMs.p95 - fallEdge.levelTimesMs.p50) >= (b - 0.25 * D) * msPerSample;
     if (!settledOk) {
       mark.problem = 'too short to settle';
-      tooShort++;
+      counts.tooShort++;
       return;
     }
     mark.rise = riseEdge;
     mark.fall = fallEdge;
   });
-  if (tooShort > 0) warnings.push(`${tooShort} of ${kept.length} marks too short to reach a settled level; their edges are left out`);
-  if (tooNoisy > 0) warnings.push(`${tooNoisy} of ${kept.length} marks too noisy to measure (plateau noise above 5 % of the step)`);
+  counts.kept = result.marks.length;
+  warnings.push(...edgeWarnings(counts, minMarkMs));
   return result;
 }
 
@@ -311,31 +354,77 @@ export interface EdgeTraces {
   falling: number[][];
 }
 
+/** A copy of the envelope around one measured mark's edges, for the overlay (kept for a few marks only). */
+export interface EdgeSnippet {
+  /** 50 % times of the rise and fall [ms, on the recording's clock]. */
+  riseAt50Ms: number;
+  fallAt50Ms: number;
+  baseLevel: number;
+  settledLevel: number;
+  /** Envelope from sample index `riseFrom` (and `fallFrom`) on the recording's clock. */
+  riseFrom: number;
+  rise: Float32Array;
+  fallFrom: number;
+  fall: Float32Array;
+}
+
+/** Half-length of the envelope kept around each edge for the overlay [ms]; the overlay's window is capped at it. */
+export const SNIPPET_HALF_MS = 40;
+
+/**
+ * Copies the envelope around a measured mark's rise and fall (±SNIPPET_HALF_MS), with `offsetSamples`
+ * added to the indices (the envelope's first sample on the recording's clock).
+ * @example edgeSnippet(env, 48000, mark, 0).rise.length //=> 3842 (80 ms at 48 kHz, plus 2)
+ */
+export function edgeSnippet(env: Float32Array, sampleRate: number, m: MarkShape, offsetSamples = 0): EdgeSnippet | null {
+  if (!m.rise || !m.fall) return null;
+  const offsetMs = (offsetSamples * 1000) / sampleRate;
+  const cut = (at50Ms: number): [number, Float32Array] => {
+    const i0 = Math.max(0, Math.floor(((at50Ms - SNIPPET_HALF_MS) * sampleRate) / 1000));
+    const i1 = Math.min(env.length, Math.ceil(((at50Ms + SNIPPET_HALF_MS) * sampleRate) / 1000) + 2);
+    return [i0 + offsetSamples, env.slice(i0, Math.max(i0, i1))];
+  };
+  const [riseFrom, rise] = cut(m.rise.at50Ms);
+  const [fallFrom, fall] = cut(m.fall.at50Ms);
+  return { riseAt50Ms: m.rise.at50Ms + offsetMs, fallAt50Ms: m.fall.at50Ms + offsetMs, baseLevel: m.baseLevel, settledLevel: m.settledLevel, riseFrom, rise, fallFrom, fall };
+}
+
+/**
+ * Samples edges on a common time axis around their 50 % crossings, for a persistence-style overlay:
+ * every `ceil(n / maxEdges)`-th snippet, `points` samples each, over ±halfWindowMs (at most SNIPPET_HALF_MS).
+ * @example tracesFromSnippets(snippets, 48000, 10, 121).timeMs.length //=> 121
+ */
+export function tracesFromSnippets(snippets: readonly EdgeSnippet[], sampleRate: number, halfWindowMs: number, points = 121, maxEdges = 40): EdgeTraces {
+  const half = Math.min(halfWindowMs, SNIPPET_HALF_MS);
+  const timeMs: number[] = [];
+  for (let p = 0; p < points; p++) timeMs.push(-half + (2 * half * p) / (points - 1));
+  const sample = (from: number, env: Float32Array, tMs: number, base: number, settled: number): number => {
+    const i = Math.floor((tMs * sampleRate) / 1000);
+    const x = (tMs * sampleRate) / 1000;
+    const j = i - from;
+    if (j < 0 || j + 1 >= env.length) return 0;
+    const v = env[j]! + (env[j + 1]! - env[j]!) * (x - i);
+    return (v - base) / (settled - base);
+  };
+  const rising: number[][] = [];
+  const falling: number[][] = [];
+  const every = Math.max(1, Math.ceil(snippets.length / maxEdges));
+  snippets.forEach((s, k) => {
+    if (k % every !== 0) return;
+    rising.push(timeMs.map((t) => round4(sample(s.riseFrom, s.rise, s.riseAt50Ms + t, s.baseLevel, s.settledLevel))));
+    falling.push(timeMs.map((t) => round4(sample(s.fallFrom, s.fall, s.fallAt50Ms + t, s.baseLevel, s.settledLevel))));
+  });
+  return { timeMs: timeMs.map(round4), rising, falling };
+}
+
 /**
  * Samples every measured edge on a common time axis around its 50 % crossing, for a persistence-style
  * overlay. At most `maxEdges` of each kind, `points` samples each.
  * @example traceEdges(env, 48000, analysis.marks, 10, 121).timeMs.length //=> 121
  */
 export function traceEdges(env: Float32Array, sampleRate: number, marks: readonly MarkShape[], halfWindowMs: number, points = 121, maxEdges = 40): EdgeTraces {
-  const timeMs: number[] = [];
-  for (let p = 0; p < points; p++) timeMs.push(-halfWindowMs + (2 * halfWindowMs * p) / (points - 1));
-  const sample = (tMs: number, base: number, settled: number): number => {
-    const x = (tMs * sampleRate) / 1000;
-    const i = Math.floor(x);
-    if (i < 0 || i + 1 >= env.length) return 0;
-    const v = env[i]! + (env[i + 1]! - env[i]!) * (x - i);
-    return (v - base) / (settled - base);
-  };
-  const rising: number[][] = [];
-  const falling: number[][] = [];
-  const measured = marks.filter((m) => m.rise && m.fall);
-  const every = Math.max(1, Math.ceil(measured.length / maxEdges));
-  measured.forEach((m, k) => {
-    if (k % every !== 0) return;
-    rising.push(timeMs.map((t) => round4(sample(m.rise!.at50Ms + t, m.baseLevel, m.settledLevel))));
-    falling.push(timeMs.map((t) => round4(sample(m.fall!.at50Ms + t, m.baseLevel, m.settledLevel))));
-  });
-  return { timeMs: timeMs.map(round4), rising, falling };
+  const snippets = marks.map((m) => edgeSnippet(env, sampleRate, m)).filter((x): x is EdgeSnippet => x !== null);
+  return tracesFromSnippets(snippets, sampleRate, halfWindowMs, points, maxEdges);
 }
 
 function round4(x: number): number {

@@ -18,6 +18,8 @@ export interface BasebandOptions {
   halfBandHz?: number;
   /** Called with the fraction done (0…1). */
   onProgress?: (fraction: number) => void;
+  /** Caller-owned arrays to write into (at least as long as the input; the result uses their first part), so a caller analysing stretch after stretch reuses one pair. */
+  output?: { re: Float32Array; im: Float32Array };
 }
 
 export interface Baseband {
@@ -61,8 +63,9 @@ export function complexBaseband(samples: Float32Array, sampleRate: number, optio
   const lowHz = toneHz - sideHz;
   const highHz = toneHz + sideHz;
   const N0 = samples.length;
-  const re = new Float32Array(N0);
-  const im = new Float32Array(N0);
+  const out = options.output;
+  const re = out && out.re.length >= N0 && out.im.length >= N0 ? out.re.subarray(0, N0) : new Float32Array(N0);
+  const im = out && out.re.length >= N0 && out.im.length >= N0 ? out.im.subarray(0, N0) : new Float32Array(N0);
   const result: Baseband = { re, im, passBandHz: [lowHz, highHz], taperHz, narrowestSideHz: Math.min(toneHz - lowHz, highHz - toneHz) };
   if (N0 === 0) return result;
 
@@ -119,10 +122,11 @@ export function complexBaseband(samples: Float32Array, sampleRate: number, optio
 
 /**
  * Magnitude |re + j·im| per sample: the keying envelope in the input's units.
+ * @param out - Optional caller-owned array (at least as long as the baseband); its first part is returned.
  * @example magnitude(complexBaseband(sine700, 48000, { toneHz: 700 }))[24000] //=> ≈ the sine's amplitude
  */
-export function magnitude(bb: Baseband): Float32Array {
-  const env = new Float32Array(bb.re.length);
+export function magnitude(bb: Baseband, out?: Float32Array): Float32Array {
+  const env = out && out.length >= bb.re.length ? out.subarray(0, bb.re.length) : new Float32Array(bb.re.length);
   for (let i = 0; i < env.length; i++) env[i] = Math.hypot(bb.re[i]!, bb.im[i]!);
   return env;
 }

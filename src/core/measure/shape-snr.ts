@@ -45,53 +45,70 @@ export function envelopeNoiseBandwidthHz(bb: Pick<Baseband, 'passBandHz' | 'tape
   return bb.passBandHz[1] - bb.passBandHz[0] + 2 * (3 / 8) * bb.taperHz;
 }
 
+/** Running sums of |z|² over key-down and key-up interiors, so that stretches of a long recording can be added up. */
+export interface SnrSums {
+  onSum: number;
+  onN: number;
+  offSum: number;
+  offN: number;
+}
+
 /**
- * Estimates the SNR from the complex envelope and a set of key-down intervals (e.g. the receiver's,
- * which finds marks far below the SNR at which edges can be measured). Only the middle half of each
- * mark and of each gap is used, so edges and timing errors of a few ms do not count as signal or noise.
- * Gaps longer than `maxGapMs` (before the first and after the last mark too) count as key-up.
- * @param bb - Complex envelope (complexBaseband), one value per sample.
- * @param sampleRate - Sample rate [Hz].
- * @param marks - Key-down intervals [ms from the first sample], in time order.
- * @returns SNR in keyform's convention (carrier over noise in 2500 Hz, as noiseSigmaForSnr) and in the envelope's band.
- * @example estimateShapeSnr(complexBaseband(noisy, 8000, { toneHz: 700 }), 8000, plan.marks).snrDb //=> ≈ the SNR it was made with
+ * Adds one stretch of a recording to the SNR sums: the middle half of each mark and of each gap
+ * (marks on the recording's clock), counted only where it falls in [keepFromMs, keepToMs) and more
+ * than 10 ms from the recording's ends (the envelope filter's start-up is not key-up noise).
+ * @param bb - Complex envelope of the stretch; its first sample is at `startMs` on the recording's clock.
+ * @param recordMs - Length of the whole recording [ms].
+ * @example addSnrSums(sums, bb, 8000, marks, { startMs: 0, keepFromMs: 0, keepToMs: 5000, recordMs: 5000 })
  */
-export function estimateShapeSnr(bb: Baseband, sampleRate: number, marks: readonly Interval[]): ShapeSnr {
+export function addSnrSums(
+  sums: SnrSums,
+  bb: Pick<Baseband, 're' | 'im'>,
+  sampleRate: number,
+  marks: readonly Interval[],
+  at: { startMs: number; keepFromMs: number; keepToMs: number; recordMs: number },
+): SnrSums {
   const perMs = sampleRate / 1000;
   const N = bb.re.length;
-  const bandHz = envelopeNoiseBandwidthHz(bb);
+  const lo = Math.max(at.keepFromMs, 10);
+  const hi = Math.min(at.keepToMs, at.recordMs - 10);
   const power = (a: number, b: number): [number, number] => {
-    const i0 = Math.max(0, Math.round(a * perMs));
-    const i1 = Math.min(N, Math.round(b * perMs));
+    const i0 = Math.max(0, Math.round((Math.max(a, lo) - at.startMs) * perMs));
+    const i1 = Math.min(N, Math.round((Math.min(b, hi) - at.startMs) * perMs));
     let s = 0;
     for (let i = i0; i < i1; i++) s += bb.re[i]! * bb.re[i]! + bb.im[i]! * bb.im[i]!;
     return [s, Math.max(0, i1 - i0)];
   };
-  let onSum = 0;
-  let onN = 0;
-  let offSum = 0;
-  let offN = 0;
-  // The envelope filter's start-up at both ends of the record is not key-up noise.
-  const edgeMs = 10;
-  let prevEnd = edgeMs;
-  const addGap = (a: number, b: number): void => {
-    const q = 0.25 * (b - a);
-    if (b - a < 4) return;
-    const [s, n] = power(a + q, b - q);
-    offSum += s;
-    offN += n;
-  };
-  for (const [a, b] of marks) {
-    if (a > prevEnd) addGap(prevEnd, a);
-    const q = 0.25 * (b - a);
-    if (b - a >= 4) {
-      const [s, n] = power(a + q, b - q);
-      onSum += s;
-      onN += n;
+  const middle = (a: number, b: number): [number, number] | null => (b - a < 4 ? null : [a + 0.25 * (b - a), b - 0.25 * (b - a)]);
+  const add = (span: [number, number] | null, on: boolean): void => {
+    if (span === null || span[1] <= lo || span[0] >= hi) return;
+    const [s, n] = power(span[0], span[1]);
+    if (on) {
+      sums.onSum += s;
+      sums.onN += n;
+    } else {
+      sums.offSum += s;
+      sums.offN += n;
     }
+  };
+  let prevEnd = 0;
+  for (const [a, b] of marks) {
+    if (a > prevEnd) add(middle(prevEnd, a), false);
+    add(middle(a, b), true);
     prevEnd = Math.max(prevEnd, b);
   }
-  addGap(prevEnd, (N / perMs) - edgeMs);
+  add(middle(prevEnd, at.recordMs), false);
+  return sums;
+}
+
+/**
+ * SNR from the sums (see addSnrSums) and the envelope filter that made them.
+ * @example snrFromSums(sums, 8000, bb).snrDb //=> ≈ the SNR the recording was made with
+ */
+export function snrFromSums(sums: SnrSums, sampleRate: number, bb: Pick<Baseband, 'passBandHz' | 'taperHz'>): ShapeSnr {
+  const perMs = sampleRate / 1000;
+  const bandHz = envelopeNoiseBandwidthHz(bb);
+  const { onSum, onN, offSum, offN } = sums;
   const result: ShapeSnr = { snrDb: null, envelopeSnrDb: null, envelopeNoiseBandwidthHz: bandHz, keyDownMs: onN / perMs, keyUpMs: offN / perMs };
   // At least 50 ms of each, or the estimate is mostly luck.
   if (onN < 50 * perMs || offN < 50 * perMs) return result;
@@ -107,4 +124,20 @@ export function estimateShapeSnr(bb: Baseband, sampleRate: number, marks: readon
   result.envelopeSnrDb = 10 * Math.log10(ratio);
   result.snrDb = 10 * Math.log10((ratio * bandHz) / SNR_BANDWIDTH_HZ);
   return result;
+}
+
+/**
+ * Estimates the SNR from the complex envelope and a set of key-down intervals (e.g. the receiver's,
+ * which finds marks far below the SNR at which edges can be measured). Only the middle half of each
+ * mark and of each gap is used, so edges and timing errors of a few ms do not count as signal or noise.
+ * @param bb - Complex envelope (complexBaseband), one value per sample.
+ * @param sampleRate - Sample rate [Hz].
+ * @param marks - Key-down intervals [ms from the first sample], in time order.
+ * @returns SNR in keyform's convention (carrier over noise in 2500 Hz, as noiseSigmaForSnr) and in the envelope's band.
+ * @example estimateShapeSnr(complexBaseband(noisy, 8000, { toneHz: 700 }), 8000, plan.marks).snrDb //=> ≈ the SNR it was made with
+ */
+export function estimateShapeSnr(bb: Baseband, sampleRate: number, marks: readonly Interval[]): ShapeSnr {
+  const recordMs = (bb.re.length * 1000) / sampleRate;
+  const sums = addSnrSums({ onSum: 0, onN: 0, offSum: 0, offN: 0 }, bb, sampleRate, marks, { startMs: 0, keepFromMs: 0, keepToMs: recordMs, recordMs });
+  return snrFromSums(sums, sampleRate, bb);
 }

@@ -11,12 +11,13 @@ import { synthesizeTone } from '../signal/synth.js';
 import { planKeying } from '../timing/plan.js';
 import { modulationRateBaud, wpmFromUnitMs } from '../timing/speed.js';
 import { emissionDesignator, necessaryBandwidthHz, occupiedBandwidth, powerDb, xDbBandwidth, type XdbBandwidth } from './bandwidth.js';
-import { measureChirp } from './chirp.js';
-import { classifyEdge, measureEdges, sortedCopy, spreadOf, traceEdges, type EdgeAnalysis, type EdgeKindEstimate, type EdgeTraces } from './edges.js';
+import { chirpFromTracks } from './chirp.js';
+import { classifyEdge, edgeWarnings, measureEdges, sortedCopy, spreadOf, tracesFromSnippets, type EdgeKindEstimate, type EdgeTraces } from './edges.js';
 import { checkMask, DEFAULT_MASK, validateMask, type MaskPoint, type MaskVerdict, type SpectralMask } from './mask.js';
 import { complexBaseband, magnitude } from './shape-analytic.js';
 import { densityAt, noiseDensityFromGaps } from './shape-noise.js';
-import { estimateShapeSnr, MIN_EDGE_SNR_DB, MIN_SPECTRUM_SNR_DB, type ShapeSnr } from './shape-snr.js';
+import { MIN_EDGE_SNR_DB, MIN_SPECTRUM_SNR_DB, snrFromSums, type ShapeSnr } from './shape-snr.js';
+import { envelopePass, type EnvelopePass } from './shape-windows.js';
 import { decodeSamples } from '../receive/index.js';
 import { findTonePeak, segmentLengthForRbw, welchSpectrum, type PowerSpectrum } from './spectrum.js';
 
@@ -280,17 +281,20 @@ interface ShapeInputs {
 function composeReport(
   input: ShapeInputs,
   options: ShapeOptions,
-  analysis: { edges: EdgeAnalysis; baseband: ReturnType<typeof complexBaseband>; timingMarks?: Interval[] },
+  analysis: { pass: EnvelopePass; step: { riseMs: number; overshootPct: number }; timingMarks?: Interval[] },
   warnings: string[],
 ): ShapeReport {
   const { samples, sampleRate, toneHz } = input;
   const progress = options.onProgress ?? (() => {});
   const k = checkRange('K', options.k ?? 5, 1, 10);
   const mask = validateMask(options.mask ?? DEFAULT_MASK);
-  const { edges, baseband } = analysis;
+  const { pass, step } = analysis;
+  const baseband = pass.baseband;
   const snrDb = input.snr?.snrDb ?? null;
   const edgesOk = snrDb === null || snrDb >= MIN_EDGE_SNR_DB;
   const spectrumOk = snrDb === null || snrDb >= MIN_SPECTRUM_SNR_DB;
+  // Below the edge threshold the shape's own marks are noise bumps: none are kept, and their warnings say nothing useful.
+  const edges = edgesOk ? pass.edges : { ...pass.edges, marks: [] };
   // Below the edge threshold the shape's own marks are noise bumps: the receiver's marks stand in for them.
   const receiverMarks: Interval[] = !edgesOk && input.snr ? analysis.timingMarks ?? [] : [];
   if (!edgesOk) {
@@ -313,7 +317,6 @@ function composeReport(
   const falls = measured.map((m) => m.fall!.rise10to90Ms);
   const riseMs = spreadOf(rises);
   const fallMs = spreadOf(falls);
-  const step = envelopeStep(sampleRate, toneHz, Math.max(100, (baseband.passBandHz[1] - baseband.passBandHz[0]) / 2));
   const resolutionMs = step.riseMs;
   const both = [...measured.map((m) => m.rise!), ...measured.map((m) => m.fall!)];
   // Share of the 10–90 % time spent below the half-way level in time order: 0.268 for an RC edge, rising or falling.
@@ -341,7 +344,7 @@ function composeReport(
     );
   }
   const overs = measured.map((m) => m.overshootPct);
-  const chirps = measureChirp(baseband, sampleRate, edges.marks, { windowMs: options.chirpWindowMs, resolutionMs });
+  const chirps = edgesOk ? chirpFromTracks(pass.chirpTracks, { windowMs: options.chirpWindowMs }) : [];
   const chirpValues = chirps.map((c) => c.chirpHz);
   const chirpByStart = new Map(chirps.map((c) => [c.startMs, c.chirpHz]));
   let worstChirp: number | null = null;
@@ -402,7 +405,7 @@ function composeReport(
     dbc.push(round(best, 2)!);
   }
 
-  const traces = traceEdges(baseband.re.length ? magnitude(baseband) : new Float32Array(0), sampleRate, edges.marks, Math.max(2, 1.5 * (allEdges ?? 2)));
+  const traces = tracesFromSnippets(edgesOk ? pass.snippets : [], sampleRate, Math.max(2, 1.5 * (allEdges ?? 2)), 121, 40);
   const notMeasured: XdbBandwidth = { lowerHz: null, upperHz: null, widthHz: null, basis: 'below the noise floor' };
   const xd = spectrumOk ? fig.xdb : { '20': notMeasured, '40': notMeasured, '60': notMeasured };
   const mask_ = maskSummary(fig.verdict, mask, spectrumOk, snrDb);
@@ -512,21 +515,14 @@ function maskSummary(v: MaskVerdict, mask: SpectralMask, spectrumOk: boolean, sn
  * Warnings when the recording starts or ends with the key down: the cut is a hard edge of its own and
  * adds clicks to the spectrum that the transmitter did not make.
  */
-function cutEdgeWarnings(env: Float32Array, sampleRate: number): string[] {
+function cutEdgeWarnings(ends: EnvelopePass['ends'], sampleRate: number): string[] {
   const n = Math.max(1, Math.round(sampleRate * 0.005));
-  let peak = 0;
-  for (const v of env) peak = Math.max(peak, v);
-  const mean = (i0: number, i1: number): number => {
-    let s = 0;
-    for (let i = i0; i < i1; i++) s += env[i]!;
-    return s / Math.max(1, i1 - i0);
-  };
   const out: string[] = [];
   const why = 'the cut is a hard edge the transmitter did not make, and its clicks show in the spectrum; record some silence around the signal';
-  if (peak > 0 && env.length > 4 * n) {
+  if (ends.peak > 0 && ends.length > 4 * n) {
     // The first and last few ms of the envelope are affected by the filter's start-up; look just inside them.
-    if (mean(2 * n, 3 * n) > 0.3 * peak) out.push(`the recording starts with the key down: ${why}`);
-    if (mean(env.length - 3 * n, env.length - 2 * n) > 0.3 * peak) out.push(`the recording ends with the key down: ${why}`);
+    if (ends.startMean > 0.3 * ends.peak) out.push(`the recording starts with the key down: ${why}`);
+    if (ends.endMean > 0.3 * ends.peak) out.push(`the recording ends with the key down: ${why}`);
   }
   return out;
 }
@@ -569,42 +565,50 @@ export function measureShape(samples: Float32Array, sampleRate: number, options:
     const endMs = (samples.length * 1000) / sampleRate;
     timing = { marks: timing.marks.filter(([a]) => a < endMs), unitMs: timing.unitMs };
   }
+  const chirp = { windowMs: options.chirpWindowMs };
   const analyse = (halfBandHz: number | undefined, p0: number, p1: number) => {
-    const baseband = complexBaseband(samples, sampleRate, { toneHz: tone, halfBandHz, onProgress: (f) => progress(p0 + (p1 - p0) * f) });
-    const env = magnitude(baseband);
-    return { baseband, env, edges: measureEdges(env, sampleRate) };
+    const step = envelopeStep(sampleRate, tone, halfBandHz ?? 4000);
+    const pass = envelopePass(samples, sampleRate, {
+      toneHz: tone,
+      halfBandHz,
+      timingMarks: timing.marks,
+      chirp: { ...chirp, resolutionMs: step.riseMs },
+      onProgress: (f) => progress(p0 + (p1 - p0) * f),
+    });
+    return { pass, step };
   };
+  const measuredCount = (p: EnvelopePass): number => p.edges.marks.filter((m) => m.rise).length;
   let best = analyse(options.envelopeHalfBandHz, 0.2, 0.3);
-  const snr = { ...estimateShapeSnr(best.baseband, sampleRate, timing.marks), timingSource };
+  const snr = { ...snrFromSums(best.pass.snr, sampleRate, best.pass.baseband), timingSource };
   const edgesOk = snr.snrDb === null || snr.snrDb >= MIN_EDGE_SNR_DB;
-  if (edgesOk && options.envelopeHalfBandHz === undefined && best.edges.marks.length >= 3) {
+  if (edgesOk && options.envelopeHalfBandHz === undefined && best.pass.edges.marks.length >= 3) {
     // Too noisy for the wide envelope: try narrower ones, trading edge resolution for noise.
     for (const halfBandHz of NARROWER_BANDS_HZ) {
-      const measuredShare = best.edges.marks.filter((m) => m.rise).length / best.edges.marks.length;
-      if (measuredShare >= 0.5 || halfBandHz >= best.baseband.narrowestSideHz) continue;
+      const measuredShare = measuredCount(best.pass) / best.pass.edges.marks.length;
+      if (measuredShare >= 0.5 || halfBandHz >= best.pass.baseband.narrowestSideHz) continue;
       const next = analyse(halfBandHz, 0.3, 0.35);
       // Only when it finds about the same marks: a narrow envelope on noise alone finds many bumps.
-      const sameMarks = Math.abs(next.edges.marks.length / best.edges.marks.length - 1) <= 0.3;
-      if (sameMarks && next.edges.marks.filter((m) => m.rise).length > best.edges.marks.filter((m) => m.rise).length) {
+      const sameMarks = Math.abs(next.pass.edges.marks.length / best.pass.edges.marks.length - 1) <= 0.3;
+      if (sameMarks && measuredCount(next.pass) > measuredCount(best.pass)) {
         best = next;
         warnings.push(`the recording is noisy: edges measured on a narrower envelope (tone ± ${halfBandHz} Hz), so edges shorter than a few times its own step read long`);
       }
     }
   }
-  const { baseband, env } = best;
-  // Below the edge threshold the shape's own marks are noise bumps: none are kept, and their warnings say nothing useful.
-  const edges: EdgeAnalysis = edgesOk ? best.edges : { ...best.edges, marks: [], warnings: [] };
-  warnings.push(...edges.warnings);
-  if (edgesOk) warnings.push(...cutEdgeWarnings(env, sampleRate));
-  if (edgesOk && edges.marks.length === 0) warnings.push('no marks found: rise, fall and chirp are not measured');
+  const { pass } = best;
+  if (edgesOk) {
+    warnings.push(...edgeWarnings(pass.edges.counts));
+    warnings.push(...cutEdgeWarnings(pass.ends, sampleRate));
+    if (pass.edges.marks.length === 0) warnings.push('no marks found: rise, fall and chirp are not measured');
+  }
   let unit: ShapeInputs['unit'];
   if (options.unitMs !== undefined) unit = { unitMs: checkRange('unit', options.unitMs, 1, 2000, 'ms'), source: 'given' };
   else if (!edgesOk) unit = { unitMs: timing.unitMs, source: 'receiver' };
-  else unit = { unitMs: estimateUnitMs(edges.marks), source: 'measured' };
+  else unit = { unitMs: estimateUnitMs(pass.edges.marks), source: 'measured' };
   return composeReport(
     { samples, sampleRate, toneHz, kind: 'measured', unit, snr },
     { ...options, onProgress: (f) => progress(0.35 + 0.65 * f) },
-    { edges, baseband, timingMarks: timing.marks },
+    { pass, step: best.step, timingMarks: timing.marks },
     warnings,
   );
 }
@@ -655,13 +659,18 @@ export function predictShape(options: PredictOptions): ShapeReport {
   checkRange('rise', options.riseMs, 0, 50, 'ms');
   const { samples, unitMs } = synthesizePrediction(options);
   const progress = options.onProgress ?? (() => {});
-  const baseband = complexBaseband(samples, PREDICT_SAMPLE_RATE, { toneHz: PREDICT_TONE_HZ, onProgress: (f) => progress(0.3 * f) });
-  const edges = measureEdges(magnitude(baseband), PREDICT_SAMPLE_RATE);
-  const warnings = [...edges.warnings];
+  const step = envelopeStep(PREDICT_SAMPLE_RATE, PREDICT_TONE_HZ, 4000);
+  const pass = envelopePass(samples, PREDICT_SAMPLE_RATE, {
+    toneHz: PREDICT_TONE_HZ,
+    timingMarks: [],
+    chirp: { windowMs: options.chirpWindowMs, resolutionMs: step.riseMs },
+    onProgress: (f) => progress(0.3 * f),
+  });
+  const warnings = edgeWarnings(pass.edges.counts);
   return composeReport(
     { samples, sampleRate: PREDICT_SAMPLE_RATE, toneHz: PREDICT_TONE_HZ, kind: 'predicted', unit: { unitMs, source: 'plan' }, snr: null },
     { ...options, onProgress: (f) => progress(0.3 + 0.7 * f) },
-    { edges, baseband },
+    { pass, step },
     warnings,
   );
 }
