@@ -43,6 +43,17 @@ describe('spectral mask', () => {
     const v = checkMask([-200, 0, 200], [-50, 0, -50], mask, [-51, -51, -51]);
     expect(v.pass).toBe(true);
     expect(v.noiseLimitedPointsHz).toEqual([100]);
+    // Nothing inside the mask could be told from the noise: no bin judged, so no verdict can rest on it.
+    expect(v.judgedBins).toBe(0);
+  });
+
+  it('counts a bin under a noise floor that is itself under the limit as judged (clean)', () => {
+    const mask = { name: 't', points: [{ offsetHz: 100, maxDbc: -30 }] };
+    // −60 dBc noise floor, limit −30 dBc: the level at ±200 Hz is at most the floor + 3 dB, far under the limit.
+    const v = checkMask([-200, 0, 200], [-61, 0, -61], mask, [-60, -60, -60]);
+    expect(v.pass).toBe(true);
+    expect(v.judgedBins).toBe(2);
+    expect(v.noiseLimitedPointsHz).toEqual([]);
   });
 
   it('fails hard keying and passes 5 ms raised-cosine edges at 20 wpm, naming the shortest rise that passes', () => {

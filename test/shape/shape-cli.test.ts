@@ -2,6 +2,7 @@ import { existsSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
+import { addNoise, noiseSigmaForSnr } from '../../src/core/signal/noise.js';
 import { synthesizeTone } from '../../src/core/signal/synth.js';
 import { planKeying } from '../../src/core/timing/plan.js';
 import { encodeWav } from '../../src/io/wav-write.js';
@@ -9,9 +10,11 @@ import { runCli } from '../helpers/cli.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'keyform-shape-'));
 
-function writeRecording(name: string, edge: 'raised-cosine' | 'hard', riseMs: number): string {
+function writeRecording(name: string, edge: 'raised-cosine' | 'hard', riseMs: number, snrDb: number | null = null): string {
   const plan = planKeying('Q7ZKT TEST', { wpm: 20 });
   const t = synthesizeTone({ marks: plan.marks, sampleRate: 16_000, toneHz: 700, levelDb: -6, edge, riseMs, padMs: 300 });
+  // keyform's SNR convention: key-down carrier over noise in 2500 Hz (src/core/signal/noise.ts).
+  if (snrDb !== null) addNoise(t.samples, noiseSigmaForSnr(10 ** (-6 / 20), 16_000, snrDb), 8);
   const path = join(dir, name);
   writeFileSync(path, encodeWav({ sampleRate: 16_000, channels: [t.samples], encoding: 's16' }));
   return path;
@@ -36,6 +39,19 @@ describe('keyform shape', () => {
     expect(j.designator).toBe('83H3A1AAN');
     expect(j.spectrum.offsetHz.length).toBe(j.spectrum.dbc.length);
     expect(j.spectrum.offsetHz.length).toBeLessThanOrEqual(2048);
+  });
+
+  it('a hard-keyed recording at 3 dB SNR: the mask is not judged (exit 0, not 1), figures left out', async () => {
+    const noisy = writeRecording('hard-noisy.wav', 'hard', 0, 3);
+    const r = await runCli(['shape', noisy]);
+    expect(r.code).toBe(0);
+    expect(r.stdout).toMatch(/NOT JUDGED/);
+    expect(r.stdout).not.toMatch(/FAIL|PASS/);
+    const j = JSON.parse((await runCli(['shape', noisy, '--json'])).stdout);
+    expect(j.mask.pass).toBeNull();
+    expect([j.riseMs.median, j.occupiedBandwidthHz]).toEqual([null, null]);
+    // 20 wpm from the receiver's timing: Bn = 83.3 Hz (ITU-R SM.1138, B = 1/60 ms, K = 5), within 5 %.
+    expect(Math.abs(j.necessaryBandwidthHz / 83.33 - 1)).toBeLessThan(0.05);
   });
 
   it('prints a readable report with the cautions, and exits 1 when the mask is exceeded', async () => {

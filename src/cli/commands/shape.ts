@@ -50,27 +50,32 @@ export function formatShapeReport(r: ShapeReport, color: boolean): string {
   }
   L.push('');
   L.push(bold('Edges (10–90 % of each mark\'s settled level)'));
-  L.push(`  rise  median ${f(r.riseMs.median, 2)} ms   p10 ${f(r.riseMs.p10, 2)}   p90 ${f(r.riseMs.p90, 2)}`);
-  L.push(`  fall  median ${f(r.fallMs.median, 2)} ms   p10 ${f(r.fallMs.p10, 2)}   p90 ${f(r.fallMs.p90, 2)}`);
-  L.push(`  edge looks ${r.edgeKind} · overshoot median ${f(r.overshootPct.median)} %, worst ${f(r.overshootPct.worst)} %`);
+  if (ms.edges) {
+    L.push(`  rise  median ${f(r.riseMs.median, 2)} ms   p10 ${f(r.riseMs.p10, 2)}   p90 ${f(r.riseMs.p90, 2)}`);
+    L.push(`  fall  median ${f(r.fallMs.median, 2)} ms   p10 ${f(r.fallMs.p10, 2)}   p90 ${f(r.fallMs.p90, 2)}`);
+    L.push(`  edge looks ${r.edgeKind} · overshoot median ${f(r.overshootPct.median)} %, worst ${f(r.overshootPct.worst)} %`);
+  } else {
+    L.push(`  rise, fall, overshoot and chirp not measured: the SNR is below ${ms.minEdgeSnrDb} dB`);
+  }
   L.push(`  envelope ${f(r.envelope.passBandHz[0], 0)}–${f(r.envelope.passBandHz[1], 0)} Hz (a hard step reads ${f(r.envelope.resolutionMs, 2)} ms)`);
-  L.push(`  chirp in the first ${r.chirpHz.windowMs} ms: median ${f(r.chirpHz.median)} Hz, worst ${f(r.chirpHz.worst)} Hz`);
+  if (ms.edges) L.push(`  chirp in the first ${r.chirpHz.windowMs} ms: median ${f(r.chirpHz.median)} Hz, worst ${f(r.chirpHz.worst)} Hz`);
   L.push('');
   L.push(bold('Spectrum'));
   L.push(`  ${r.spectrum.reference}`);
-  L.push(`  occupied bandwidth (99 %, ITU-R SM.328)  ${hz(r.occupiedBandwidthHz)}` + (r.occupiedBandEdgesHz ? `   (${f(r.occupiedBandEdgesHz.lowerHz)} … +${f(r.occupiedBandEdgesHz.upperHz)} Hz)` : ''));
+  if (!ms.spectrum) L.push(`  occupied and x-dB bandwidths and click levels not measured: the SNR is below ${ms.minSpectrumSnrDb} dB`);
+  else L.push(`  occupied bandwidth (99 %, ITU-R SM.328)  ${hz(r.occupiedBandwidthHz)}` + (r.occupiedBandEdgesHz ? `   (${f(r.occupiedBandEdgesHz.lowerHz)} … +${f(r.occupiedBandEdgesHz.upperHz)} Hz)` : ''));
   if (r.noiseCorrection.applied && r.occupiedBandwidthHz !== null && (r.spectrum.noiseFloorDbc ?? -200) > -150) {
     L.push(`  noise floor ${f(r.spectrum.noiseFloorDbc)} dBc per bin, removed first: without that the figure would read ${hz(r.noiseCorrection.uncorrectedHz)} (${f(r.noiseCorrection.correctionPct)} % wider)`);
   }
-  for (const x of ['20', '40', '60'] as const) {
+  for (const x of ms.spectrum ? (['20', '40', '60'] as const) : []) {
     const basis = r.bandwidthBasis[x] === 'both sides' ? '' : `  (${r.bandwidthBasis[x]})`;
     L.push(`  bandwidth at −${x} dBc  ${hz(r.bandwidthAtDbcHz[x])}${basis}`);
   }
-  L.push(`  clicks  ${r.clickDbc.map((c) => `±${c.offsetHz} Hz: ${f(c.lowerDbc)} / ${f(c.upperDbc)} dBc`).join('   ')}`);
+  if (ms.spectrum) L.push(`  clicks  ${r.clickDbc.map((c) => `±${c.offsetHz} Hz: ${f(c.lowerDbc)} / ${f(c.upperDbc)} dBc`).join('   ')}`);
   L.push('');
   L.push(bold('Necessary bandwidth (ITU-R SM.1138)'));
   L.push(`  B = ${f(r.speed.modulationRateBaud, 2)} baud (unit ${f(r.speed.unitMs, 1)} ms, ${f(r.speed.wpm, 1)} wpm, ${r.speed.source}) · K = ${r.k} · Bn = ${hz(r.necessaryBandwidthHz)} · ${r.designator ?? '–'}`);
-  L.push(`  occupied / necessary = ${f(r.occupiedToNecessary, 2)} (information, not a verdict)`);
+  if (r.occupiedToNecessary !== null) L.push(`  occupied / necessary = ${f(r.occupiedToNecessary, 2)} (information, not a verdict)`);
   L.push(`  The Recommendation's own example converts speed as B ≈ 0.8 × wpm (25 wpm → 20 baud → 100 Hz, 100HA1AAN).`);
   L.push('');
   const m = r.mask;
