@@ -11,7 +11,7 @@
  *   npx tsx bench/decode-accuracy.ts --only "35.*-6"  rows matching a regular expression (label and SNR)
  */
 import { decodeSamples } from '../src/core/receive/index.js';
-import { applyFading, handTiming, type FadingOptions } from '../src/core/signal/impair.js';
+import { applyFading, handTiming, synthesizeDriftingTone, type FadingOptions } from '../src/core/signal/impair.js';
 import { addNoise, noiseSigmaForSnr, seededRandom } from '../src/core/signal/noise.js';
 import { synthesizeTone } from '../src/core/signal/synth.js';
 import { planKeying } from '../src/core/timing/plan.js';
@@ -74,6 +74,8 @@ interface Case {
   snrDb: number;
   hand?: { jitterPct: number; driftPct: number; dahRatio?: number; wordGapUnits?: number };
   fading?: FadingOptions;
+  /** Tone offset [Hz] at t seconds from the start of each message's audio. */
+  drift?: (seconds: number) => number;
   target?: number;
 }
 
@@ -89,7 +91,8 @@ function runCase(c: Case, seedBase: number): { cer: number; chars: number; secon
     const plan = planKeying(text, { wpm: c.wpm });
     let marks: Interval[] = plan.marks;
     if (c.hand) marks = handTiming(marks, { unitMs: plan.unitMs, seed: seedBase * 1000 + k, ...c.hand });
-    const tone = synthesizeTone({ marks, sampleRate: SAMPLE_RATE, toneHz: TONE_HZ, levelDb: LEVEL_DB, edge: 'raised-cosine', riseMs: 5, padMs: 500 });
+    const toneOptions = { marks, sampleRate: SAMPLE_RATE, toneHz: TONE_HZ, levelDb: LEVEL_DB, edge: 'raised-cosine', riseMs: 5, padMs: 500 } as const;
+    const tone = c.drift ? synthesizeDriftingTone(toneOptions, c.drift) : synthesizeTone(toneOptions);
     if (c.fading) applyFading(tone.samples, SAMPLE_RATE, c.fading.kind === 'rayleigh' ? { ...c.fading, seed: c.fading.seed + k } : c.fading);
     addNoise(tone.samples, noiseSigmaForSnr(10 ** (LEVEL_DB / 20), SAMPLE_RATE, c.snrDb), seedBase * 7919 + k);
     const t0 = performance.now();
@@ -119,6 +122,8 @@ cases.push({ label: '20 wpm hand, 15 % jitter, drift −15 %, dash 2.6', wpm: 20
 cases.push({ label: '20 wpm, 20 dB fades every 8 s', wpm: 20, snrDb: 10, fading: { kind: 'periodic', depthDb: 20, periodS: 8 }, target: 0.05 });
 cases.push({ label: '20 wpm, Rayleigh fading 0.1 Hz', wpm: 20, snrDb: 10, fading: { kind: 'rayleigh', dopplerHz: 0.1, seed: 77 }, target: 0.05 });
 cases.push({ label: '20 wpm, Rayleigh fading 0.5 Hz', wpm: 20, snrDb: 10, fading: { kind: 'rayleigh', dopplerHz: 0.5, seed: 78 } });
+for (const snrDb of [10, -6]) cases.push({ label: '20 wpm, tone drifting 2 Hz/s (40 Hz in 20 s)', wpm: 20, snrDb, drift: (t) => 2 * t });
+cases.push({ label: '20 wpm, tone warming up: 30 Hz, time constant 10 s', wpm: 20, snrDb: 0, drift: (t) => 30 * (1 - Math.exp(-t / 10)) });
 
 const started = performance.now();
 console.log(`keyform decode accuracy: CER = edit distance / reference length; ${CHARS_PER_POINT}+ characters per row`);

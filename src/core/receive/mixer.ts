@@ -47,9 +47,23 @@ export class Mixer {
     this.toneHzValue = toneHz;
     const w = (2 * Math.PI * toneHz) / this.sampleRate;
     const n = this.samplesPerFrame;
+    // By rotation (a complex multiply per entry, exact cos/sin every 32 entries): retuning is
+    // frequent while the tone tracker follows a drift, and trigonometry per entry would cost
+    // as much as mixing the samples.
+    const cr = Math.cos(w);
+    const ci = -Math.sin(w);
+    let re = 1;
+    let im = 0;
     for (let i = 0; i < n; i++) {
-      this.tabRe[i] = Math.cos(w * i);
-      this.tabIm[i] = -Math.sin(w * i);
+      if ((i & 31) === 0) {
+        re = Math.cos(w * i);
+        im = -Math.sin(w * i);
+      }
+      this.tabRe[i] = re;
+      this.tabIm[i] = im;
+      const nr = re * cr - im * ci;
+      im = re * ci + im * cr;
+      re = nr;
     }
     this.stepRe = Math.cos(w * n);
     this.stepIm = -Math.sin(w * n);

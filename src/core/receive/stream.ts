@@ -6,6 +6,7 @@ import { Mixer } from './mixer.js';
 import { LevelSlicer } from './slicer.js';
 import { SnrEstimator } from './snr.js';
 import { findTone } from './tone.js';
+import { fitToneLine, ToneTracker, type ToneLine } from './tone-track.js';
 import { buildCodeTrie, type CodeTrie } from './trie.js';
 import { SequenceDecoder, type DurationModel, type Segment } from './viterbi.js';
 
@@ -41,10 +42,13 @@ export const PREROLL_MS = 6000;
 const FRAME_MS = 2.5;
 /** Slots per unit at the starting speed. */
 const SLOTS_PER_UNIT = 4;
-/** Tone loop: phase-step averaging [ms], time constant of the offset [s] and of the drift rate [s]. */
-const FLL_AVERAGE_MS = 800;
-const FLL_TIME_S = 2;
-const FLL_RATE_S = 4;
+/** How far the tracked tone may wander from the first estimate [Hz], and how fast [Hz/s]. */
+const TONE_RANGE_HZ = 300;
+const TONE_RATE_MAX = 20;
+/** The mixer is retuned when the tracked tone has moved this far [Hz] (0.1 Hz turns a 120 ms block by 4°). */
+const RETUNE_HZ = 0.1;
+/** Pre-roll frames mixed at one tone when the tone drifts [frames]. */
+const PREROLL_RETUNE_FRAMES = 20;
 /** Bounds of the tracked timing spread (standard deviation of ln duration). */
 const SPREAD_MIN = 0.15;
 const SPREAD_MAX = 0.4;
@@ -104,11 +108,10 @@ export class StreamDecoder {
   private zRe = new Float64Array(0);
   private zIm = new Float64Array(0);
   private toneStartHz = 0;
-  /** Tone followed by the frequency-locked loop [Hz]. */
-  private toneHz = 0;
   private replaying = false;
-  /** Tone drift rate followed by the loop [Hz/s]. */
-  private toneRateHzPerS = 0;
+  /** Tone and drift fitted over the pre-roll, and the tracker that follows them afterwards. */
+  private toneLine: ToneLine = { startHz: 0, rateHzPerS: 0, segments: 0 };
+  private tracker: ToneTracker | null = null;
   /** Ring of frame amplitudes (as long as the decoder's history), for refining mark edges. */
   private frameAmp = new Float32Array(0);
   private frameCount = 0;
@@ -117,9 +120,6 @@ export class StreamDecoder {
   private prevOn = false;
   private prevRe = 0;
   private prevIm = 0;
-  private fllRe = 0;
-  private fllIm = 0;
-  private fllMag = 0;
   private lagSlots = 0;
   private model: DurationModel | null = null;
   private snr = new SnrEstimator();
@@ -206,12 +206,23 @@ export class StreamDecoder {
       this.toneProminenceDb = found.prominenceDb;
     }
     this.toneStartHz = toneHz;
-    this.toneHz = toneHz;
     const spf = Math.max(1, Math.round((this.sampleRate * FRAME_MS) / 1000));
     this.frameMs = (spf * 1000) / this.sampleRate;
-    const mixer = new Mixer(this.sampleRate, toneHz, spf);
+    // A drifting tone: mix the pre-roll along the line fitted to it, a few frames at a time.
+    const line = fitToneLine(samples, this.sampleRate, toneHz);
+    const drifting = line.segments > 0 && Math.abs(line.rateHzPerS) * (samples.length / this.sampleRate) > 1;
+    this.toneLine = drifting ? line : { startHz: toneHz, rateHzPerS: 0, segments: 0 };
+    const mixer = new Mixer(this.sampleRate, this.toneLine.startHz, spf);
     this.ensureFrameBuffers(samples.length);
-    const nFrames = mixer.process(samples, this.frameRe, this.frameIm);
+    let nFrames = 0;
+    if (!drifting) nFrames = mixer.process(samples, this.frameRe, this.frameIm);
+    else {
+      const block = PREROLL_RETUNE_FRAMES * spf;
+      for (let a = 0; a < samples.length; a += block) {
+        mixer.setTone(line.startHz + line.rateHzPerS * ((a + block / 2) / this.sampleRate));
+        nFrames += mixer.process(samples.subarray(a, Math.min(samples.length, a + block)), this.frameRe.subarray(nFrames), this.frameIm.subarray(nFrames));
+      }
+    }
     const est = this.bestCandidate(estimateTimingCandidates(this.frameRe, this.frameIm, nFrames, this.frameMs, CANDIDATES), nFrames);
     if (!est) {
       if (!final && this.options.toneHz === undefined) {
@@ -229,6 +240,13 @@ export class StreamDecoder {
     }
     this.mixer = mixer;
     this.start(est);
+    const endS = samples.length / this.sampleRate;
+    const toneNow = this.toneLine.startHz + this.toneLine.rateHzPerS * endS;
+    mixer.setTone(toneNow);
+    this.tracker = new ToneTracker({
+      toneHz: toneNow, rateHzPerS: this.toneLine.rateHzPerS, stepS: this.slotMs / 1000,
+      toneSigmaHz: 2, rateSigmaHzPerS: drifting ? 0.5 : 1,
+    });
     this.phase = 'run';
     const copyRe = this.frameRe.slice(0, nFrames);
     const copyIm = this.frameIm.slice(0, nFrames);
@@ -346,7 +364,8 @@ export class StreamDecoder {
 
   private mix(chunk: Float32Array): void {
     const mixer = this.mixer!;
-    const block = 1 << 16;
+    // One slot at a time, so that a retune by the tone tracker applies from the next slot on.
+    const block = mixer.samplesPerFrame * this.framesPerSlot;
     for (let off = 0; off < chunk.length; off += block) {
       const part = chunk.subarray(off, Math.min(chunk.length, off + block));
       this.ensureFrameBuffers(part.length);
@@ -386,28 +405,29 @@ export class StreamDecoder {
   }
 
   /**
-   * Frequency-locked loop: the phase step between consecutive key-down slots, averaged, gives the
-   * tone's offset from the mixer; a second integrator follows a steady drift.
+   * Tone tracking: the phase step between consecutive key-down slots measures the tone's offset
+   * from the mixer; a Kalman filter (ToneTracker) follows the tone and its drift rate, and the
+   * mixer is retuned to it.
    */
   private trackTone(zr: number, zi: number, on: boolean): void {
-    if (on && this.prevOn && !this.replaying) {
-      const cr = zr * this.prevRe + zi * this.prevIm;
-      const ci = zi * this.prevRe - zr * this.prevIm;
-      const a = Math.min(1, this.slotMs / FLL_AVERAGE_MS);
-      this.fllRe += a * (cr - this.fllRe);
-      this.fllIm += a * (ci - this.fllIm);
-      this.fllMag += a * (Math.hypot(cr, ci) - this.fllMag);
-      const mag = Math.hypot(this.fllRe, this.fllIm);
-      if (this.fllMag > 0 && mag / this.fllMag > 0.5) {
-        const dt = this.slotMs / 1000;
-        const dfHz = Math.atan2(this.fllIm, this.fllRe) / (2 * Math.PI * dt);
-        // Second-order loop: follows a steadily drifting tone without a standing offset.
-        this.toneRateHzPerS += (dfHz / (FLL_RATE_S * FLL_RATE_S)) * dt;
-        const mixer = this.mixer!;
-        this.toneHz = Math.max(this.toneStartHz - 80, Math.min(this.toneStartHz + 80, this.toneHz + (dfHz / FLL_TIME_S + this.toneRateHzPerS) * dt));
-        // Retune (a table rebuild) only when the tracked tone has moved a little.
-        if (Math.abs(this.toneHz - mixer.toneHz) > 0.02 && this.toneHz > 0 && this.toneHz < this.sampleRate / 2) mixer.setTone(this.toneHz);
+    if (!this.replaying) {
+      const tracker = this.tracker!;
+      const mixer = this.mixer!;
+      tracker.step();
+      const p1 = zr * zr + zi * zi;
+      const p0 = this.prevRe * this.prevRe + this.prevIm * this.prevIm;
+      if (on && this.prevOn && p1 > 0 && p0 > 0) {
+        const cr = zr * this.prevRe + zi * this.prevIm;
+        const ci = zi * this.prevRe - zr * this.prevIm;
+        // Phase noise of a slot with carrier-to-noise ratio ρ ≈ 1/(2ρ) [analytic, high SNR], at most
+        // that of a uniform phase; ρ from the slot's own power less the noise.
+        const N = this.slicer!.noisePow;
+        const phaseVar = (p: number): number => Math.min((Math.PI * Math.PI) / 3, N / (2 * Math.max(p - N, 1e-3 * N)));
+        tracker.measure(mixer.toneHz, Math.atan2(ci, cr), phaseVar(p1) + phaseVar(p0));
       }
+      tracker.clamp(Math.max(1, this.toneStartHz - TONE_RANGE_HZ), Math.min(this.sampleRate / 2 - 1, this.toneStartHz + TONE_RANGE_HZ), TONE_RATE_MAX);
+      // Retune (a table rebuild) only when the tracked tone has moved a little.
+      if (Math.abs(tracker.toneHz - mixer.toneHz) > RETUNE_HZ) mixer.setTone(tracker.toneHz);
     }
     this.prevOn = on;
     this.prevRe = zr;

@@ -1,11 +1,13 @@
 /**
  * Channel impairments for tests and benchmarks: hand-sent timing (jitter, speed drift, dash/dot
- * ratio, stretched gaps) and fading (periodic deep fades, slow Rayleigh fading). Deterministic:
+ * ratio, stretched gaps), fading (periodic deep fades, slow Rayleigh fading) and a drifting tone. Deterministic:
  * every random draw comes from a seeded source (see noise.ts).
  */
 import { checkRange } from '../errors.js';
 import type { Interval } from '../timeline.js';
+import { keyingEnvelope } from './edges.js';
 import { gaussianSource, seededRandom } from './noise.js';
+import { synthesizeTone, type SynthesizedTone, type ToneOptions } from './synth.js';
 
 export interface HandTimingOptions {
   /** Unit length of the original timeline [ms]. */
@@ -121,4 +123,32 @@ export function applyFading(samples: Float32Array, sampleRate: number, options: 
     samples[i] = samples[i]! * (gain[k]! * (1 - f) + gain[k + 1]! * f);
   }
   return samples;
+}
+
+/**
+ * Synthesizes a keyed tone whose frequency wanders, as an oscillator warming up or drifting would:
+ * the same keying envelope and framing as synthesizeTone, with a phase-continuous sine at
+ * `toneHz + offsetHz(t)`.
+ * @param tone - As for synthesizeTone (`chirp` is ignored).
+ * @param offsetHz - Frequency offset [Hz] at t seconds from the first sample; the tone must stay
+ *   between 0 and sampleRate/2.
+ * @example synthesizeDriftingTone(opts, (t) => 2 * t) // a tone rising by 2 Hz/s
+ */
+export function synthesizeDriftingTone(tone: ToneOptions, offsetHz: (seconds: number) => number): SynthesizedTone {
+  // Checks the options and gives the framing (start time and length) of the steady tone.
+  const steady = synthesizeTone({ ...tone, chirp: undefined });
+  const { sampleRate, marks, edge, riseMs } = tone;
+  const n = steady.samples.length;
+  const env = keyingEnvelope({ marks, sampleRate, edge, riseMs, startMs: steady.startMs, lengthSamples: n });
+  const amp = 10 ** (tone.levelDb / 20);
+  const samples = new Float32Array(n);
+  let phase = 0;
+  for (let i = 0; i < n; i++) {
+    const hz = tone.toneHz + offsetHz(i / sampleRate);
+    if (!(hz > 0 && hz < sampleRate / 2)) throw new RangeError(`drifting tone left 0…${sampleRate / 2} Hz (${hz} Hz at ${(i / sampleRate).toFixed(2)} s)`);
+    samples[i] = amp * env[i]! * Math.sin(phase);
+    phase += (2 * Math.PI * hz) / sampleRate;
+    if (phase > 2 * Math.PI) phase -= 2 * Math.PI;
+  }
+  return { samples, sampleRate, startMs: steady.startMs };
 }

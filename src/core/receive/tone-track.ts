@@ -1,0 +1,149 @@
+/**
+ * Tone tracking for the receiver: a fit of the tone's drift over the pre-roll, and a Kalman filter
+ * that follows the tone and its drift rate from the phase steps of key-down slots afterwards.
+ */
+import { findTone } from './tone.js';
+
+/** A straight-line tone track: toneHz(t) = startHz + rateHzPerS · t. */
+export interface ToneLine {
+  /** Tone at t = 0 (the first sample given) [Hz]. */
+  startHz: number;
+  /** Drift rate [Hz/s]. */
+  rateHzPerS: number;
+  /** Segments whose peak went into the fit (0: no fit, the rate is 0). */
+  segments: number;
+}
+
+/** Pre-roll segment length for the drift fit [s], search half-width around the tone [Hz], and prominence a segment's peak needs [dB]. */
+const SEGMENT_S = 1;
+const SEARCH_HZ = 60;
+const SEGMENT_PROMINENCE_DB = 12;
+
+/**
+ * Fits a straight line to the tone over a stretch of audio: the strongest peak within ±60 Hz of
+ * `toneHz` in each second (findTone on the segment), weighted by its prominence, least squares.
+ * Segments where the peak does not stand 12 dB over the band's median (no keying, or a weak
+ * signal) are left out; with fewer than three, the line is flat at `toneHz`.
+ * @param samples - Audio (e.g. the receiver's pre-roll, a few seconds).
+ * @param sampleRate - Sample rate [Hz], 8000…192000.
+ * @param toneHz - Tone found over the whole stretch [Hz].
+ * @returns Tone at the first sample [Hz] and drift rate [Hz/s].
+ * @example fitToneLine(toneRisingBy2HzPerS, 8000, 706).rateHzPerS //=> ≈ 2
+ */
+export function fitToneLine(samples: Float32Array, sampleRate: number, toneHz: number): ToneLine {
+  const seg = Math.round(SEGMENT_S * sampleRate);
+  const t: number[] = [];
+  const f: number[] = [];
+  const w: number[] = [];
+  for (let a = 0; a + seg <= samples.length; a += seg) {
+    const est = findTone(samples.subarray(a, a + seg), sampleRate, { minHz: toneHz - SEARCH_HZ, maxHz: toneHz + SEARCH_HZ });
+    if (est.prominenceDb < SEGMENT_PROMINENCE_DB) continue;
+    t.push((a + seg / 2) / sampleRate);
+    f.push(est.toneHz);
+    w.push(est.prominenceDb);
+  }
+  if (t.length < 3) return { startHz: toneHz, rateHzPerS: 0, segments: 0 };
+  let sw = 0, st = 0, sf = 0;
+  for (let i = 0; i < t.length; i++) { sw += w[i]!; st += w[i]! * t[i]!; sf += w[i]! * f[i]!; }
+  const tm = st / sw;
+  const fm = sf / sw;
+  let stt = 0, stf = 0;
+  for (let i = 0; i < t.length; i++) { stt += w[i]! * (t[i]! - tm) ** 2; stf += w[i]! * (t[i]! - tm) * (f[i]! - fm); }
+  const rate = stt > 0 ? stf / stt : 0;
+  return { startHz: fm - rate * tm, rateHzPerS: rate, segments: t.length };
+}
+
+export interface ToneTrackerOptions {
+  /** Starting tone [Hz] and drift rate [Hz/s]. */
+  toneHz: number;
+  rateHzPerS: number;
+  /** Time between updates (one slot) [s], > 0. */
+  stepS: number;
+  /** Starting uncertainty of the tone [Hz] and of the rate [Hz/s] (one standard deviation). */
+  toneSigmaHz: number;
+  rateSigmaHzPerS: number;
+}
+
+/** How fast the drift rate may wander: spectral density of its random walk [(Hz/s)²/s]. */
+const RATE_WANDER = 0.05;
+/** How fast the tone may wander beside its drift [Hz²/s]. */
+const TONE_WANDER = 0.02;
+/** Innovations are clipped to this many standard deviations (a noise slot taken for a mark). */
+const CLIP_SIGMA = 3;
+
+/**
+ * Kalman filter over tone [Hz] and drift rate [Hz/s] (a constant-velocity model with a random walk
+ * on the rate). Each pair of consecutive key-down slots gives one measurement: the phase step
+ * between them over the slot time is the tone's offset from the mixer, with a variance from the
+ * slots' own SNR (phase noise ≈ σ²/(2|z|²) per slot at high SNR [analytic]), so strong signals
+ * follow fast drift and weak ones average long.
+ * @example const k = new ToneTracker({ toneHz: 700, rateHzPerS: 0, stepS: 0.015, toneSigmaHz: 3, rateSigmaHzPerS: 1 }); k.step(); k.toneHz //=> 700
+ */
+export class ToneTracker {
+  private f: number;
+  private r: number;
+  private pff: number;
+  private pfr = 0;
+  private prr: number;
+  private readonly dt: number;
+
+  constructor(options: ToneTrackerOptions) {
+    this.f = options.toneHz;
+    this.r = options.rateHzPerS;
+    this.dt = options.stepS;
+    this.pff = options.toneSigmaHz ** 2;
+    this.prr = options.rateSigmaHzPerS ** 2;
+  }
+
+  /** Tracked tone [Hz]. */
+  get toneHz(): number {
+    return this.f;
+  }
+
+  /** Tracked drift rate [Hz/s]. */
+  get rateHzPerS(): number {
+    return this.r;
+  }
+
+  /** Moves the state on by one slot (prediction). */
+  step(): void {
+    const dt = this.dt;
+    this.f += this.r * dt;
+    const pff = this.pff + 2 * dt * this.pfr + dt * dt * this.prr + TONE_WANDER * dt + (RATE_WANDER * dt ** 3) / 3;
+    const pfr = this.pfr + dt * this.prr + (RATE_WANDER * dt * dt) / 2;
+    this.pff = pff;
+    this.pfr = pfr;
+    this.prr += RATE_WANDER * dt;
+  }
+
+  /**
+   * Takes one measurement: the phase step between two consecutive key-down slots.
+   * @param mixerHz - Tone the slots were mixed with [Hz].
+   * @param stepRad - Phase step of the later slot over the earlier, −π…π [rad].
+   * @param varianceRad2 - Its variance [rad²].
+   */
+  measure(mixerHz: number, stepRad: number, varianceRad2: number): void {
+    const k2pi = 2 * Math.PI * this.dt;
+    const y = mixerHz + stepRad / k2pi;
+    const R = Math.min(varianceRad2, (Math.PI * Math.PI) / 3) / (k2pi * k2pi);
+    const S = this.pff + R;
+    const limit = CLIP_SIGMA * Math.sqrt(S);
+    const nu = Math.max(-limit, Math.min(limit, y - this.f));
+    const kf = this.pff / S;
+    const kr = this.pfr / S;
+    this.f += kf * nu;
+    this.r += kr * nu;
+    const pff = (1 - kf) * this.pff;
+    const pfr = (1 - kf) * this.pfr;
+    const prr = this.prr - kr * this.pfr;
+    this.pff = pff;
+    this.pfr = pfr;
+    this.prr = prr;
+  }
+
+  /** Keeps the tone within [lo, hi] [Hz] and the rate within ±maxRate [Hz/s]. */
+  clamp(lo: number, hi: number, maxRate: number): void {
+    this.f = Math.min(hi, Math.max(lo, this.f));
+    this.r = Math.min(maxRate, Math.max(-maxRate, this.r));
+  }
+}
