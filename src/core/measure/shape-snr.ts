@@ -10,17 +10,18 @@ import type { Baseband } from './shape-analytic.js';
 /**
  * Lowest SNR at which keyform reports rise, fall, overshoot, chirp and the edge kind [dB, key-down
  * carrier power over noise in 2500 Hz, as noiseSigmaForSnr]. Measured with keyform's own synthesizer
- * and seeded noise (5 ms raised-cosine edges at 18 wpm / 8 kHz and 25 wpm / 48 kHz, 2.5 ms linear at
- * 20 wpm / 16 kHz; three seeds each): at 20 dB the median 10–90 % rise read 3–7 % short, at 15 dB
- * 6–19 % short, at 10 dB up to 90 % off (table in docs/shape.md).
+ * and seeded noise (test/shape/snr-thresholds.bench.ts: 5 ms raised-cosine edges at 18 wpm / 8 kHz and
+ * 25 wpm / 48 kHz, 2.5 ms linear at 20 wpm / 16 kHz, hard keying at 18 wpm / 24 kHz; three seeds each):
+ * at 20 dB the median 10–90 % rise of the shaped edges read 4–8 % short, at 15 dB up to 19 % short,
+ * at 10 dB up to 90 % off (table in docs/shape.md).
  */
 export const MIN_EDGE_SNR_DB = 20;
 
 /**
  * Lowest SNR at which keyform reports the occupied and x-dB bandwidths, click levels and a mask
- * verdict [dB, same convention]. Measured the same way (plus hard keying at 18 wpm / 24 kHz): at
- * 24 dB the noise-corrected 99 % bandwidth was 1–5 % above the noise-free figure, at 22 dB 2–10 %,
- * at 20 dB 3–16 % (the wider the sampled band, the worse), at 15 dB up to 12× too wide.
+ * verdict [dB, same convention]. Measured the same way: at 24 dB the noise-corrected 99 % bandwidth
+ * was 1–4.5 % above the noise-free figure, at 22 dB up to 10 %, at 20 dB up to 16 % (the wider the
+ * sampled band, the worse), at 15 dB up to 12× too wide.
  */
 export const MIN_SPECTRUM_SNR_DB = 24;
 

@@ -144,6 +144,11 @@ export interface ShapeOptions {
    * measureShape runs the receiver (decodeSamples) itself.
    */
   timing?: { marks: Interval[]; unitMs: number | null };
+  /**
+   * SNR thresholds [dB] instead of MIN_EDGE_SNR_DB and MIN_SPECTRUM_SNR_DB — for measuring how the
+   * figures degrade below them (test/shape/snr-thresholds.bench.ts), not for everyday use.
+   */
+  snrThresholdsDb?: { edges: number; spectrum: number };
   /** Called with the fraction done (0…1). */
   onProgress?: (fraction: number) => void;
 }
@@ -291,8 +296,10 @@ function composeReport(
   const { pass, step } = analysis;
   const baseband = pass.baseband;
   const snrDb = input.snr?.snrDb ?? null;
-  const edgesOk = snrDb === null || snrDb >= MIN_EDGE_SNR_DB;
-  const spectrumOk = snrDb === null || snrDb >= MIN_SPECTRUM_SNR_DB;
+  const minEdge = options.snrThresholdsDb?.edges ?? MIN_EDGE_SNR_DB;
+  const minSpectrum = options.snrThresholdsDb?.spectrum ?? MIN_SPECTRUM_SNR_DB;
+  const edgesOk = snrDb === null || snrDb >= minEdge;
+  const spectrumOk = snrDb === null || snrDb >= minSpectrum;
   // Below the edge threshold the shape's own marks are noise bumps: none are kept, and their warnings say nothing useful.
   const edges = edgesOk ? pass.edges : { ...pass.edges, marks: [] };
   // Below the edge threshold the shape's own marks are noise bumps: the receiver's marks stand in for them.
@@ -300,14 +307,14 @@ function composeReport(
   if (!edgesOk) {
     warnings.push(
       `the recording is too noisy to measure the keying shape: SNR ${snrDb!.toFixed(1)} dB (key-down carrier over noise in 2500 Hz), ` +
-        `below the ${MIN_EDGE_SNR_DB} dB needed for rise, fall, overshoot and chirp` +
-        (spectrumOk ? '' : ` and the ${MIN_SPECTRUM_SNR_DB} dB needed for the bandwidths and the mask`) +
+        `below the ${minEdge} dB needed for rise, fall, overshoot and chirp` +
+        (spectrumOk ? '' : ` and the ${minSpectrum} dB needed for the bandwidths and the mask`) +
         ': those figures are left out (null). Record closer to the transmitter, or through an attenuator from its output',
     );
   } else if (!spectrumOk) {
     warnings.push(
       `the recording is too noisy for the spectral figures: SNR ${snrDb!.toFixed(1)} dB (key-down carrier over noise in 2500 Hz), ` +
-        `below the ${MIN_SPECTRUM_SNR_DB} dB needed for the occupied and x-dB bandwidths, click levels and the mask verdict: those are left out (null)`,
+        `below the ${minSpectrum} dB needed for the occupied and x-dB bandwidths, click levels and the mask verdict: those are left out (null)`,
     );
   } else if (input.kind === 'measured' && input.snr && snrDb === null) {
     warnings.push('the SNR could not be estimated (too little key-down or key-up time): the figures are given unchecked');
@@ -408,16 +415,16 @@ function composeReport(
   const traces = tracesFromSnippets(edgesOk ? pass.snippets : [], sampleRate, Math.max(2, 1.5 * (allEdges ?? 2)), 121, 40);
   const notMeasured: XdbBandwidth = { lowerHz: null, upperHz: null, widthHz: null, basis: 'below the noise floor' };
   const xd = spectrumOk ? fig.xdb : { '20': notMeasured, '40': notMeasured, '60': notMeasured };
-  const mask_ = maskSummary(fig.verdict, mask, spectrumOk, snrDb);
-  const lowSnrProblem = `too noisy: SNR ${snrDb?.toFixed(1)} dB, below the ${MIN_EDGE_SNR_DB} dB needed to measure edges`;
+  const mask_ = maskSummary(fig.verdict, mask, spectrumOk, snrDb, minSpectrum);
+  const lowSnrProblem = `too noisy: SNR ${snrDb?.toFixed(1)} dB, below the ${minEdge} dB needed to measure edges`;
   return {
     kind: input.kind,
     measurable: {
       snrDb: round(snrDb, 1),
       envelopeSnrDb: round(input.snr?.envelopeSnrDb ?? null, 1),
       timingSource: input.snr?.timingSource ?? 'plan',
-      minEdgeSnrDb: MIN_EDGE_SNR_DB,
-      minSpectrumSnrDb: MIN_SPECTRUM_SNR_DB,
+      minEdgeSnrDb: minEdge,
+      minSpectrumSnrDb: minSpectrum,
       edges: edgesOk,
       spectrum: spectrumOk,
     },
@@ -492,7 +499,7 @@ function composeReport(
  * The mask part of the report: the verdict rounded, or not judged (pass null, no violations) when the
  * recording is too noisy for spectral figures or when no point of the mask could be checked.
  */
-function maskSummary(v: MaskVerdict, mask: SpectralMask, spectrumOk: boolean, snrDb: number | null): Omit<ShapeReport['mask'], 'shortestRiseMs' | 'sweepEdge'> {
+function maskSummary(v: MaskVerdict, mask: SpectralMask, spectrumOk: boolean, snrDb: number | null, minSpectrumDb: number): Omit<ShapeReport['mask'], 'shortestRiseMs' | 'sweepEdge'> {
   const rounded = {
     ...v,
     worstExcessDb: round(v.worstExcessDb, 2),
@@ -502,7 +509,7 @@ function maskSummary(v: MaskVerdict, mask: SpectralMask, spectrumOk: boolean, sn
   if (!spectrumOk) {
     return {
       ...rounded, pass: null, violations: [], worstExcessDb: null,
-      note: `not judged: SNR ${snrDb?.toFixed(1)} dB is below the ${MIN_SPECTRUM_SNR_DB} dB needed to tell the transmitter's spectrum from the recording's noise`,
+      note: `not judged: SNR ${snrDb?.toFixed(1)} dB is below the ${minSpectrumDb} dB needed to tell the transmitter's spectrum from the recording's noise`,
     };
   }
   if (v.pass && v.judgedBins === 0) {
@@ -580,7 +587,7 @@ export function measureShape(samples: Float32Array, sampleRate: number, options:
   const measuredCount = (p: EnvelopePass): number => p.edges.marks.filter((m) => m.rise).length;
   let best = analyse(options.envelopeHalfBandHz, 0.2, 0.3);
   const snr = { ...snrFromSums(best.pass.snr, sampleRate, best.pass.baseband), timingSource };
-  const edgesOk = snr.snrDb === null || snr.snrDb >= MIN_EDGE_SNR_DB;
+  const edgesOk = snr.snrDb === null || snr.snrDb >= (options.snrThresholdsDb?.edges ?? MIN_EDGE_SNR_DB);
   if (edgesOk && options.envelopeHalfBandHz === undefined && best.pass.edges.marks.length >= 3) {
     // Too noisy for the wide envelope: try narrower ones, trading edge resolution for noise.
     for (const halfBandHz of NARROWER_BANDS_HZ) {
