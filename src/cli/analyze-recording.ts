@@ -259,6 +259,8 @@ async function analyzeInto(row: BatchRow, path: string, options: AnalyzeOptions)
       if (report.mask.pass === false) row.verdict = 'mask fail';
       else if (report.mask.pass === null) row.verdict = 'not judged';
       row.warnings.push(...report.warnings.map((w) => `shape: ${w}`));
+      // Too noisy: the warnings above say so. Otherwise say why the mask was not judged.
+      if (report.mask.pass === null && report.measurable.spectrum && report.mask.note) row.warnings.push(`shape: mask ${report.mask.note}`);
     } catch (err) {
       row.warnings.push(`shape: ${errorLine(err)}`);
     }
