@@ -108,6 +108,20 @@ describe('figures left out below the SNR that supports them', () => {
     expect(r.mask.pass).toBeNull();
   });
 
+  it('noise alone at a given tone: nothing measured, the mask not judged (no confident figures from noise)', () => {
+    const x = addNoise(new Float32Array(FS * 5), 0.1, 3);
+    const r = measureShape(x, FS, { toneHz: TONE_HZ, findShortestRise: false });
+    expect(r.measurable).toMatchObject({ edges: false, spectrum: false });
+    expect([r.riseMs.median, r.occupiedBandwidthHz, r.mask.pass]).toEqual([null, null, null]);
+  });
+
+  it('a single clean burst: measured, even where the receiver finds no marks (the shape\'s own mark then gives the SNR)', () => {
+    const x = synthesizeTone({ marks: [[0, 400]], sampleRate: FS, toneHz: TONE_HZ, levelDb: -6, edge: 'raised-cosine', riseMs: 5, padMs: 200 }).samples;
+    const r = measureShape(x, FS, { toneHz: TONE_HZ, findShortestRise: false });
+    expect(r.measurable.edges).toBe(true);
+    expect(Math.abs(r.riseMs.median! / 5 - 1)).toBeLessThan(0.03);
+  });
+
   it('a clean recording is measured in full (no noise: SNR above any threshold)', () => {
     const r = measureShape(clean, FS, { toneHz: TONE_HZ, findShortestRise: false });
     expect(r.measurable).toMatchObject({ edges: true, spectrum: true });

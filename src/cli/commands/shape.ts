@@ -33,6 +33,13 @@ export interface ShapeCliOptions {
 const f = (x: number | null | undefined, digits = 1): string => (x === null || x === undefined ? '–' : x.toFixed(digits));
 const hz = (x: number | null | undefined): string => (x === null || x === undefined ? '–' : `${x.toFixed(x >= 100 ? 0 : 1)} Hz`);
 
+const TIMING_LABEL: Record<ShapeReport['measurable']['timingSource'], string> = {
+  receiver: "the receiver's marks",
+  given: 'the given marks',
+  plan: 'the plan',
+  shape: "the shape analysis's own marks",
+};
+
 /** The human-readable report. */
 export function formatShapeReport(r: ShapeReport, color: boolean): string {
   const bold = (s: string): string => (color ? `\x1b[1m${s}\x1b[22m` : s);
@@ -44,7 +51,7 @@ export function formatShapeReport(r: ShapeReport, color: boolean): string {
   if (r.kind === 'measured') {
     const left = !ms.edges ? 'edges and spectral figures left out' : !ms.spectrum ? 'spectral figures left out' : 'enough for every figure';
     L.push(
-      `  SNR ${ms.snrDb === null ? '–' : `${f(ms.snrDb)} dB`} (key-down carrier over noise in 2500 Hz, from the ${ms.timingSource}'s marks; ` +
+      `  SNR ${ms.snrDb === null ? '–' : `${f(ms.snrDb)} dB`} (key-down carrier over noise in 2500 Hz, from ${TIMING_LABEL[ms.timingSource]}; ` +
         `edges need ${ms.minEdgeSnrDb} dB, spectrum ${ms.minSpectrumSnrDb} dB): ${left}`,
     );
   }

@@ -62,7 +62,7 @@ export interface ShapeMeasurability {
   /** The same against the noise in the envelope's own band [dB]. */
   envelopeSnrDb: number | null;
   /** Where the key-down / key-up split for the estimate came from. */
-  timingSource: 'receiver' | 'given' | 'plan';
+  timingSource: 'receiver' | 'given' | 'plan' | 'shape';
   /** Thresholds below which the figures are left out [dB, same convention]. */
   minEdgeSnrDb: number;
   minSpectrumSnrDb: number;
@@ -298,13 +298,20 @@ function composeReport(
   const snrDb = input.snr?.snrDb ?? null;
   const minEdge = options.snrThresholdsDb?.edges ?? MIN_EDGE_SNR_DB;
   const minSpectrum = options.snrThresholdsDb?.spectrum ?? MIN_SPECTRUM_SNR_DB;
-  const edgesOk = snrDb === null || snrDb >= minEdge;
-  const spectrumOk = snrDb === null || snrDb >= minSpectrum;
+  // A measured report stands behind a figure only with an SNR estimate at or above its threshold; a prediction has no noise.
+  const predicted = input.snr === null;
+  const edgesOk = predicted || (snrDb !== null && snrDb >= minEdge);
+  const spectrumOk = predicted || (snrDb !== null && snrDb >= minSpectrum);
   // Below the edge threshold the shape's own marks are noise bumps: none are kept, and their warnings say nothing useful.
   const edges = edgesOk ? pass.edges : { ...pass.edges, marks: [] };
   // Below the edge threshold the shape's own marks are noise bumps: the receiver's marks stand in for them.
   const receiverMarks: Interval[] = !edgesOk && input.snr ? analysis.timingMarks ?? [] : [];
-  if (!edgesOk) {
+  if (!predicted && snrDb === null) {
+    warnings.push(
+      'the SNR could not be estimated (neither the receiver nor the shape analysis found enough key-down and key-up time, at least 50 ms of each): ' +
+        'rise, fall, overshoot, chirp, the bandwidths and the mask verdict are left out (null)',
+    );
+  } else if (!edgesOk) {
     warnings.push(
       `the recording is too noisy to measure the keying shape: SNR ${snrDb!.toFixed(1)} dB (key-down carrier over noise in 2500 Hz), ` +
         `below the ${minEdge} dB needed for rise, fall, overshoot and chirp` +
@@ -316,8 +323,6 @@ function composeReport(
       `the recording is too noisy for the spectral figures: SNR ${snrDb!.toFixed(1)} dB (key-down carrier over noise in 2500 Hz), ` +
         `below the ${minSpectrum} dB needed for the occupied and x-dB bandwidths, click levels and the mask verdict: those are left out (null)`,
     );
-  } else if (input.kind === 'measured' && input.snr && snrDb === null) {
-    warnings.push('the SNR could not be estimated (too little key-down or key-up time): the figures are given unchecked');
   }
   const measured = edges.marks.filter((m) => m.rise && m.fall);
   const rises = measured.map((m) => m.rise!.rise10to90Ms);
@@ -416,7 +421,7 @@ function composeReport(
   const notMeasured: XdbBandwidth = { lowerHz: null, upperHz: null, widthHz: null, basis: 'below the noise floor' };
   const xd = spectrumOk ? fig.xdb : { '20': notMeasured, '40': notMeasured, '60': notMeasured };
   const mask_ = maskSummary(fig.verdict, mask, spectrumOk, snrDb, minSpectrum);
-  const lowSnrProblem = `too noisy: SNR ${snrDb?.toFixed(1)} dB, below the ${minEdge} dB needed to measure edges`;
+  const lowSnrProblem = snrDb === null ? 'the SNR could not be estimated' : `too noisy: SNR ${snrDb.toFixed(1)} dB, below the ${minEdge} dB needed to measure edges`;
   return {
     kind: input.kind,
     measurable: {
@@ -509,7 +514,10 @@ function maskSummary(v: MaskVerdict, mask: SpectralMask, spectrumOk: boolean, sn
   if (!spectrumOk) {
     return {
       ...rounded, pass: null, violations: [], worstExcessDb: null,
-      note: `not judged: SNR ${snrDb?.toFixed(1)} dB is below the ${minSpectrumDb} dB needed to tell the transmitter's spectrum from the recording's noise`,
+      note:
+        snrDb === null
+          ? 'not judged: the SNR could not be estimated, so the spectrum cannot be told from the recording\'s noise'
+          : `not judged: SNR ${snrDb.toFixed(1)} dB is below the ${minSpectrumDb} dB needed to tell the transmitter's spectrum from the recording's noise`,
     };
   }
   if (v.pass && v.judgedBins === 0) {
@@ -586,8 +594,16 @@ export function measureShape(samples: Float32Array, sampleRate: number, options:
   };
   const measuredCount = (p: EnvelopePass): number => p.edges.marks.filter((m) => m.rise).length;
   let best = analyse(options.envelopeHalfBandHz, 0.2, 0.3);
-  const snr = { ...snrFromSums(best.pass.snr, sampleRate, best.pass.baseband), timingSource };
-  const edgesOk = snr.snrDb === null || snr.snrDb >= (options.snrThresholdsDb?.edges ?? MIN_EDGE_SNR_DB);
+  let snr: NonNullable<ShapeInputs['snr']> = { ...snrFromSums(best.pass.snr, sampleRate, best.pass.baseband), timingSource };
+  if (snr.snrDb === null && best.pass.edges.marks.length > 0) {
+    // The receiver found no marks (pure noise, or too few marks for it): estimate from the shape's own
+    // marks. On noise they are the envelope's random peaks, whose level over the troughs reads far below
+    // the thresholds, so noise is still not measured as a transmitter.
+    const own: Interval[] = best.pass.edges.marks.map((m) => [m.startMs, m.endMs]);
+    const again = envelopePass(samples, sampleRate, { toneHz: tone, halfBandHz: options.envelopeHalfBandHz, timingMarks: own, chirp });
+    snr = { ...snrFromSums(again.snr, sampleRate, again.baseband), timingSource: 'shape' };
+  }
+  const edgesOk = snr.snrDb !== null && snr.snrDb >= (options.snrThresholdsDb?.edges ?? MIN_EDGE_SNR_DB);
   if (edgesOk && options.envelopeHalfBandHz === undefined && best.pass.edges.marks.length >= 3) {
     // Too noisy for the wide envelope: try narrower ones, trading edge resolution for noise.
     for (const halfBandHz of NARROWER_BANDS_HZ) {
