@@ -11,6 +11,7 @@
  *   npx tsx bench/decode-accuracy.ts --only "35.*-6"  rows matching a regular expression (label and SNR)
  */
 import { decodeSamples } from '../src/core/receive/index.js';
+import { editDistance } from '../src/core/receive/edit-distance.js';
 import { applyFading, handTiming, synthesizeDriftingTone, type FadingOptions } from '../src/core/signal/impair.js';
 import { addNoise, noiseSigmaForSnr, seededRandom } from '../src/core/signal/noise.js';
 import { synthesizeTone } from '../src/core/signal/synth.js';
@@ -51,21 +52,6 @@ function message(rnd: () => number, chars: number): string {
     len += w.length + 1;
   }
   return words.join(' ');
-}
-
-function editDistance(a: string, b: string): number {
-  const prev = new Array<number>(b.length + 1);
-  for (let j = 0; j <= b.length; j++) prev[j] = j;
-  for (let i = 1; i <= a.length; i++) {
-    let diag = prev[0]!;
-    prev[0] = i;
-    for (let j = 1; j <= b.length; j++) {
-      const tmp = prev[j]!;
-      prev[j] = Math.min(prev[j]! + 1, prev[j - 1]! + 1, diag + (a[i - 1] === b[j - 1] ? 0 : 1));
-      diag = tmp;
-    }
-  }
-  return prev[b.length]!;
 }
 
 interface Case {

@@ -27,6 +27,10 @@ export interface SliceStep {
 
 /** Highest SNR of one mixer frame the levels may claim (20 dB), so a noiseless file does not divide by zero. */
 const MAX_FRAME_SNR = 100;
+/** Slots above this many times the noise level do not update it. */
+const NOISE_GATE = 4;
+/** Mean of an exponential variable below NOISE_GATE times its mean, over that mean [analytic]. */
+const NOISE_GATE_MEAN = 1 - (NOISE_GATE * Math.exp(-NOISE_GATE)) / (1 - Math.exp(-NOISE_GATE));
 
 /**
  * @example const s = new LevelSlicer({ windowSlots: 4, slotMs: 15, signalPow: 2.25, noisePow: 0.25, framesPerSlot: 6 }); s.step(1.5, 0).on // true once a mark fills the window
@@ -119,7 +123,13 @@ export class LevelSlicer {
     } else {
       this.offSlots++;
       // The slot leaving the window is at least one window away from any mark the slicer saw.
-      if (this.offSlots >= 2 * w) this.noise += this.alphaNoise * (oldRe * oldRe + oldIm * oldIm - this.noise);
+      if (this.offSlots >= 2 * w) {
+        // Only slots that look like noise: a mark faded below the slicing threshold is still far
+        // above the noise and must not raise it. Noise power |z|² is exponential, so slots below
+        // c times its mean have mean (1 − c·e^(−c)/(1 − e^(−c))) times it [analytic]; undo that.
+        const p = oldRe * oldRe + oldIm * oldIm;
+        if (p < NOISE_GATE * this.noise) this.noise += this.alphaNoise * (p / NOISE_GATE_MEAN - this.noise);
+      }
       // Through a fade no mark passes the threshold: let the signal level sink toward the noise.
       if (this.offSlots > 8 * w) this.peakPow -= this.alphaDecay * (this.peakPow - noise);
     }

@@ -31,6 +31,8 @@ const SPREAD = { dit: 0.3, dah: 0.3, elementGap: 0.35, letterGap: 0.35, wordGap:
 const GAP_PRIOR = { elementGap: Math.log(0.6), letterGap: Math.log(0.3), wordGap: Math.log(0.1) };
 /** Log prior cost of a mark 6 dB below the tracked amplitude. */
 const WEAKER_PRIOR = -4;
+/** Log prior cost of a mark 12 dB below it (fast fading: the level tracker lags a fade by a few marks). */
+const WEAKER_PRIOR_12DB = -8;
 /** Paths more than this far (natural log) below the best one are dropped (beam search). */
 const BEAM = 40;
 /** Log penalty of decoding a run that is not a known character. */
@@ -40,8 +42,8 @@ const CHAR_PRIOR = 0;
 
 /**
  * Mark score: the log-likelihood ratio ln I0(x) − q of a tone of the tracked amplitude, or of a
- * tone 6 dB weaker (with a prior cost), whichever fits best, so that marks stay visible while the
- * amplitude tracker catches up with a fade.
+ * tone 6 or 12 dB weaker (with prior costs), whichever fits best, so that marks stay visible while
+ * the amplitude tracker catches up with a fade.
  * @param x - 2·|Σ y| over the segment. @param q - Σ A²/σ² over the segment.
  * @returns Log-likelihood ratio [nats].
  * @example markScore(0, 0) //=> 0
@@ -49,7 +51,8 @@ const CHAR_PRIOR = 0;
 export function markScore(x: number, q: number): number {
   const full = lnI0(x) - q;
   const half = lnI0(0.5 * x) - 0.25 * q + WEAKER_PRIOR;
-  return Math.max(full, half);
+  const quarter = lnI0(0.25 * x) - q / 16 + WEAKER_PRIOR_12DB;
+  return Math.max(full, half, quarter);
 }
 
 interface DurationTable {
