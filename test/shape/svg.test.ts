@@ -1,5 +1,8 @@
 import { describe, expect, it } from 'vitest';
-import { predictShape } from '../../src/core/measure/shape.js';
+import { measureShape, predictShape } from '../../src/core/measure/shape.js';
+import { addNoise, noiseSigmaForSnr } from '../../src/core/signal/noise.js';
+import { synthesizeTone } from '../../src/core/signal/synth.js';
+import { planKeying } from '../../src/core/timing/plan.js';
 import { shapeSvg } from '../../src/io/svg.js';
 
 describe('shape plot (SVG)', () => {
@@ -30,5 +33,18 @@ describe('shape plot (SVG)', () => {
     expect(svg).toContain('>10 %<');
     expect(svg).toContain('>90 %<');
     expect(svg).toContain(`necessary bandwidth ${Math.round(report.necessaryBandwidthHz! * 10) / 10} Hz (SM.1138)`);
+  });
+
+  it('says "mask: not judged" for a recording too noisy to judge, and draws no edges', () => {
+    const plan = planKeying('Q7ZKT', { wpm: 20 });
+    const x = synthesizeTone({ marks: plan.marks, sampleRate: 8000, toneHz: 700, levelDb: -6, edge: 'hard', riseMs: 0, padMs: 300 }).samples;
+    // 0 dB in keyform's convention (carrier over noise in 2500 Hz, src/core/signal/noise.ts).
+    addNoise(x, noiseSigmaForSnr(10 ** (-6 / 20), 8000, 0), 1);
+    const noisy = measureShape(x, 8000, { toneHz: 700, findShortestRise: false });
+    const plot = shapeSvg(noisy);
+    expect(noisy.mask.pass).toBeNull();
+    expect(plot).toContain('mask: not judged');
+    expect(plot).not.toMatch(/mask: (pass|FAIL)/);
+    expect(noisy.edges.rising).toHaveLength(0);
   });
 });
