@@ -128,3 +128,26 @@ describe('figures left out below the SNR that supports them', () => {
     expect(r.mask.pass).toBe(true);
   });
 });
+
+describe('a fading signal below the edge threshold on average', () => {
+  // Slow fades of 20 dB every 4 s, 24 dB SNR at the peaks (keyform's convention): about 19 dB on average.
+  const fs = 8000;
+  const plan = planKeying('TEST DE Q7ZKT Q7ZKT TEST DE Q7ZKT', { wpm: 20 });
+  const faded = (seed: number): Float32Array => {
+    const x = synthesizeTone({ marks: plan.marks, sampleRate: fs, toneHz: 750, levelDb: -6, edge: 'raised-cosine', riseMs: 5, padMs: 400 }).samples;
+    for (let i = 0; i < x.length; i++) x[i]! *= 10 ** ((-10 * (1 - Math.cos((2 * Math.PI * i) / fs / 4))) / 20);
+    return addNoise(x, noiseSigmaForSnr(AMPLITUDE, fs, 24), seed);
+  };
+  for (const seed of [1, 5]) {
+    it(`measures the edges on the marks that reach ${MIN_EDGE_SNR_DB} dB on their own, within 10 % of 5 ms (seed ${seed})`, () => {
+      const r = measureShape(faded(seed), fs, { toneHz: 750, findShortestRise: false });
+      expect(r.measurable.snrDb!).toBeLessThan(MIN_EDGE_SNR_DB);
+      expect(r.measurable.edges).toBe(true);
+      expect(r.marks.measured).toBeGreaterThanOrEqual(5);
+      expect(Math.abs(r.riseMs.median! / 5 - 1)).toBeLessThan(0.1);
+      expect(r.warnings.join('\n')).toMatch(/marks are below the 20 dB SNR needed for edges on their own/);
+      // The spectrum is the whole recording's: below 24 dB on average it is not judged.
+      expect(r.mask.pass).toBeNull();
+    });
+  }
+});

@@ -2,7 +2,7 @@ import { Option, type Command } from 'commander';
 import { InputError } from '../../core/errors.js';
 import { EDGE_KINDS, type EdgeKind } from '../../core/signal/edges.js';
 import { parseMaskCsv, type SpectralMask } from '../../core/measure/mask.js';
-import { CAUTION, FILTER_NOTE, measureShape, predictShape, sweepRise, type ShapeReport, type SweepResult } from '../../core/measure/shape.js';
+import { CAUTION, FILTER_NOTE, MIN_STRONG_MARKS, measureShape, predictShape, sweepRise, type ShapeReport, type SweepResult } from '../../core/measure/shape.js';
 import { MIN_EDGE_SNR_DB, MIN_SPECTRUM_SNR_DB } from '../../core/measure/shape-snr.js';
 import { readInputFile, writeOutputFile } from '../../io/files.js';
 import { formatJson } from '../../io/json.js';
@@ -159,7 +159,8 @@ Examples:
   keyform shape --predict --sweep --wpm 30 --edge linear
 
 Exit status 1 when the spectrum exceeds the mask (not when the recording is too noisy to judge it).
-Below ${MIN_EDGE_SNR_DB} dB SNR (key-down carrier over noise in 2500 Hz) rise, fall, overshoot and chirp are left out;
+Below ${MIN_EDGE_SNR_DB} dB SNR (key-down carrier over noise in 2500 Hz) rise, fall, overshoot and chirp are left out
+(unless at least ${MIN_STRONG_MARKS} marks reach it on their own, as at the peaks of a fading signal: then those marks are used);
 below ${MIN_SPECTRUM_SNR_DB} dB the bandwidths, click levels and the mask verdict too ("not judged").
 Record through a wide filter (2.4 kHz or more) or take the sidetone: a receiver's CW filter lengthens edges.
 Caution: ${CAUTION}`,

@@ -13,7 +13,8 @@ import type { Baseband } from './shape-analytic.js';
  * and seeded noise (test/shape/snr-thresholds.bench.ts: 5 ms raised-cosine edges at 18 wpm / 8 kHz and
  * 25 wpm / 48 kHz, 2.5 ms linear at 20 wpm / 16 kHz, hard keying at 18 wpm / 24 kHz; three seeds each):
  * at 20 dB the median 10–90 % rise of the shaped edges read 4–8 % short, at 15 dB up to 19 % short,
- * at 10 dB up to 90 % off (table in docs/shape.md).
+ * at 10 dB up to 90 % off (table in docs/shape.md). Applied to the recording's average and to each
+ * mark's own SNR (measureShape).
  */
 export const MIN_EDGE_SNR_DB = 20;
 
@@ -32,6 +33,8 @@ export interface ShapeSnr {
   envelopeSnrDb: number | null;
   /** Noise bandwidth of the envelope filter [Hz]. */
   envelopeNoiseBandwidthHz: number;
+  /** Mean |z|² of the key-up noise in the envelope (the envelope's units squared); null without key-up time. */
+  noisePower: number | null;
   /** Key-down and key-up time the estimate rests on [ms]. */
   keyDownMs: number;
   keyUpMs: number;
@@ -110,7 +113,14 @@ export function snrFromSums(sums: SnrSums, sampleRate: number, bb: Pick<Baseband
   const perMs = sampleRate / 1000;
   const bandHz = envelopeNoiseBandwidthHz(bb);
   const { onSum, onN, offSum, offN } = sums;
-  const result: ShapeSnr = { snrDb: null, envelopeSnrDb: null, envelopeNoiseBandwidthHz: bandHz, keyDownMs: onN / perMs, keyUpMs: offN / perMs };
+  const result: ShapeSnr = {
+    snrDb: null,
+    envelopeSnrDb: null,
+    envelopeNoiseBandwidthHz: bandHz,
+    noisePower: offN > 0 ? offSum / offN : null,
+    keyDownMs: onN / perMs,
+    keyUpMs: offN / perMs,
+  };
   // At least 50 ms of each, or the estimate is mostly luck.
   if (onN < 50 * perMs || offN < 50 * perMs) return result;
   const pOn = onSum / onN;

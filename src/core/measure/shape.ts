@@ -11,12 +11,13 @@ import { synthesizeTone } from '../signal/synth.js';
 import { planKeying } from '../timing/plan.js';
 import { modulationRateBaud, wpmFromUnitMs } from '../timing/speed.js';
 import { emissionDesignator, necessaryBandwidthHz, occupiedBandwidth, powerDb, xDbBandwidth, type XdbBandwidth } from './bandwidth.js';
-import { chirpFromTracks } from './chirp.js';
-import { classifyEdge, edgeWarnings, measureEdges, sortedCopy, spreadOf, tracesFromSnippets, type EdgeKindEstimate, type EdgeTraces } from './edges.js';
+import { chirpFromTracks, type ChirpTrack } from './chirp.js';
+import { classifyEdge, edgeWarnings, measureEdges, sortedCopy, spreadOf, tracesFromSnippets, type EdgeAnalysis, type EdgeKindEstimate, type EdgeSnippet, type EdgeTraces } from './edges.js';
 import { checkMask, DEFAULT_MASK, validateMask, type MaskPoint, type MaskVerdict, type SpectralMask } from './mask.js';
 import { complexBaseband, magnitude } from './shape-analytic.js';
 import { densityAt, noiseDensityFromGaps } from './shape-noise.js';
-import { MIN_EDGE_SNR_DB, MIN_SPECTRUM_SNR_DB, snrFromSums, type ShapeSnr } from './shape-snr.js';
+import { envelopeNoiseBandwidthHz, MIN_EDGE_SNR_DB, MIN_SPECTRUM_SNR_DB, snrFromSums, type ShapeSnr } from './shape-snr.js';
+import { SNR_BANDWIDTH_HZ } from '../signal/noise.js';
 import { envelopePass, type EnvelopePass } from './shape-windows.js';
 import { decodeSamples } from '../receive/index.js';
 import { findTonePeak, segmentLengthForRbw, welchSpectrum, type PowerSpectrum } from './spectrum.js';
@@ -273,6 +274,56 @@ function envelopeStep(sampleRate: number, toneHz: number, halfBandHz: number): {
   return { riseMs: m?.rise?.rise10to90Ms ?? NaN, overshootPct: m?.overshootPct ?? NaN };
 }
 
+/**
+ * Fewest marks that must reach the edge threshold on their own for a recording below it on average
+ * (a fading signal) to have its edges measured on those marks alone.
+ */
+export const MIN_STRONG_MARKS = 5;
+
+interface EdgeGate {
+  ok: boolean;
+  edges: EdgeAnalysis;
+  tracks: ChirpTrack[];
+  snippets: EdgeSnippet[];
+  /** Marks left out for their own SNR, below the edge threshold. */
+  weak: number;
+}
+
+/**
+ * Which marks the edge figures may rest on: each mark's own SNR (its plateau level against the
+ * key-up noise, in keyform's convention) must reach `minEdgeDb`. The edges are measurable when the
+ * recording as a whole reaches it, or when at least MIN_STRONG_MARKS marks do (the peaks of a fading
+ * signal); never without an SNR estimate. Predictions (no noise) pass as they are.
+ */
+function gateEdges(pass: EnvelopePass, snr: ShapeSnr | null, minEdgeDb: number): EdgeGate {
+  const predicted = snr === null;
+  const snrDb = snr?.snrDb ?? null;
+  if (predicted) return { ok: true, edges: pass.edges, tracks: pass.chirpTracks, snippets: pass.snippets, weak: 0 };
+  const none: EdgeGate = { ok: false, edges: { ...pass.edges, marks: [] }, tracks: [], snippets: [], weak: 0 };
+  if (snrDb === null) return none;
+  const pOff = snr!.noisePower ?? 0;
+  const bandHz = envelopeNoiseBandwidthHz(pass.baseband);
+  const markSnrDb = (settled: number): number =>
+    pOff > 0 ? 10 * Math.log10((Math.max(settled * settled - pOff, 1e-30) / pOff) * (bandHz / SNR_BANDWIDTH_HZ)) : Infinity;
+  let weak = 0;
+  const marks = pass.edges.marks.map((m) => {
+    const db = markSnrDb(m.settledLevel);
+    if (db >= minEdgeDb) return m;
+    weak++;
+    return { ...m, rise: null, fall: null, problem: `too noisy: its own SNR ${db.toFixed(1)} dB is below the ${minEdgeDb} dB needed to measure edges` };
+  });
+  const strong = marks.filter((m) => m.rise && m.fall).length;
+  if (!(snrDb >= minEdgeDb || strong >= MIN_STRONG_MARKS)) return { ...none, weak };
+  const kept = new Set(marks.filter((m) => m.rise).map((m) => m.rise!.at50Ms));
+  return {
+    ok: true,
+    edges: { ...pass.edges, marks },
+    tracks: pass.chirpTracks.filter((t) => kept.has(t.startMs)),
+    snippets: pass.snippets.filter((sn) => kept.has(sn.riseAt50Ms)),
+    weak,
+  };
+}
+
 interface ShapeInputs {
   samples: Float32Array;
   sampleRate: number;
@@ -300,10 +351,11 @@ function composeReport(
   const minSpectrum = options.snrThresholdsDb?.spectrum ?? MIN_SPECTRUM_SNR_DB;
   // A measured report stands behind a figure only with an SNR estimate at or above its threshold; a prediction has no noise.
   const predicted = input.snr === null;
-  const edgesOk = predicted || (snrDb !== null && snrDb >= minEdge);
+  const gate = gateEdges(pass, input.snr, minEdge);
+  const edgesOk = gate.ok;
   const spectrumOk = predicted || (snrDb !== null && snrDb >= minSpectrum);
   // Below the edge threshold the shape's own marks are noise bumps: none are kept, and their warnings say nothing useful.
-  const edges = edgesOk ? pass.edges : { ...pass.edges, marks: [] };
+  const edges = gate.edges;
   // Below the edge threshold the shape's own marks are noise bumps: the receiver's marks stand in for them.
   const receiverMarks: Interval[] = !edgesOk && input.snr ? analysis.timingMarks ?? [] : [];
   if (!predicted && snrDb === null) {
@@ -322,6 +374,12 @@ function composeReport(
     warnings.push(
       `the recording is too noisy for the spectral figures: SNR ${snrDb!.toFixed(1)} dB (key-down carrier over noise in 2500 Hz), ` +
         `below the ${minSpectrum} dB needed for the occupied and x-dB bandwidths, click levels and the mask verdict: those are left out (null)`,
+    );
+  }
+  if (edgesOk && gate.weak > 0) {
+    warnings.push(
+      `${gate.weak} of ${edges.marks.length} marks are below the ${minEdge} dB SNR needed for edges on their own (a weak or fading signal; ` +
+        `the recording's average is ${snrDb!.toFixed(1)} dB): rise, fall, overshoot and chirp rest on the others`,
     );
   }
   const measured = edges.marks.filter((m) => m.rise && m.fall);
@@ -356,7 +414,7 @@ function composeReport(
     );
   }
   const overs = measured.map((m) => m.overshootPct);
-  const chirps = edgesOk ? chirpFromTracks(pass.chirpTracks, { windowMs: options.chirpWindowMs }) : [];
+  const chirps = edgesOk ? chirpFromTracks(gate.tracks, { windowMs: options.chirpWindowMs }) : [];
   const chirpValues = chirps.map((c) => c.chirpHz);
   const chirpByStart = new Map(chirps.map((c) => [c.startMs, c.chirpHz]));
   let worstChirp: number | null = null;
@@ -417,7 +475,7 @@ function composeReport(
     dbc.push(round(best, 2)!);
   }
 
-  const traces = tracesFromSnippets(edgesOk ? pass.snippets : [], sampleRate, Math.max(2, 1.5 * (allEdges ?? 2)), 121, 40);
+  const traces = tracesFromSnippets(gate.snippets, sampleRate, Math.max(2, 1.5 * (allEdges ?? 2)), 121, 40);
   const notMeasured: XdbBandwidth = { lowerHz: null, upperHz: null, widthHz: null, basis: 'below the noise floor' };
   const xd = spectrumOk ? fig.xdb : { '20': notMeasured, '40': notMeasured, '60': notMeasured };
   const mask_ = maskSummary(fig.verdict, mask, spectrumOk, snrDb, minSpectrum);
@@ -603,7 +661,9 @@ export function measureShape(samples: Float32Array, sampleRate: number, options:
     const again = envelopePass(samples, sampleRate, { toneHz: tone, halfBandHz: options.envelopeHalfBandHz, timingMarks: own, chirp });
     snr = { ...snrFromSums(again.snr, sampleRate, again.baseband), timingSource: 'shape' };
   }
-  const edgesOk = snr.snrDb !== null && snr.snrDb >= (options.snrThresholdsDb?.edges ?? MIN_EDGE_SNR_DB);
+  // Judged at the 0.1 dB the report shows, so that a figure and its verdict agree.
+  snr = { ...snr, snrDb: round(snr.snrDb, 1) };
+  const edgesOk = gateEdges(best.pass, snr, options.snrThresholdsDb?.edges ?? MIN_EDGE_SNR_DB).ok;
   if (edgesOk && options.envelopeHalfBandHz === undefined && best.pass.edges.marks.length >= 3) {
     // Too noisy for the wide envelope: try narrower ones, trading edge resolution for noise.
     for (const halfBandHz of NARROWER_BANDS_HZ) {
@@ -619,14 +679,15 @@ export function measureShape(samples: Float32Array, sampleRate: number, options:
     }
   }
   const { pass } = best;
-  if (edgesOk) {
+  const finalOk = gateEdges(pass, snr, options.snrThresholdsDb?.edges ?? MIN_EDGE_SNR_DB).ok;
+  if (finalOk) {
     warnings.push(...edgeWarnings(pass.edges.counts));
     warnings.push(...cutEdgeWarnings(pass.ends, sampleRate));
     if (pass.edges.marks.length === 0) warnings.push('no marks found: rise, fall and chirp are not measured');
   }
   let unit: ShapeInputs['unit'];
   if (options.unitMs !== undefined) unit = { unitMs: checkRange('unit', options.unitMs, 1, 2000, 'ms'), source: 'given' };
-  else if (!edgesOk) unit = { unitMs: timing.unitMs, source: 'receiver' };
+  else if (!finalOk) unit = { unitMs: timing.unitMs, source: 'receiver' };
   else unit = { unitMs: estimateUnitMs(pass.edges.marks), source: 'measured' };
   return composeReport(
     { samples, sampleRate, toneHz, kind: 'measured', unit, snr },
