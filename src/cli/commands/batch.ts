@@ -157,6 +157,8 @@ export interface BatchSummary {
   ok: number;
   noSignal: number;
   maskFail: number;
+  /** Rows whose shape was too noisy to judge. */
+  notJudged: number;
   errors: number;
   /** Audio analysed [s]. */
   audioS: number;
@@ -177,6 +179,7 @@ export function summarize(rows: readonly BatchRow[], files: number, jobs: number
     ok: rows.filter((r) => r.verdict === 'ok').length,
     noSignal: rows.filter((r) => r.verdict === 'no signal').length,
     maskFail: rows.filter((r) => r.verdict === 'mask fail').length,
+    notJudged: rows.filter((r) => r.verdict === 'not judged').length,
     errors: rows.filter((r) => r.verdict === 'error').length,
     audioS: Math.round(audioS * 1000) / 1000,
     wallS: Math.round(wallS * 1000) / 1000,
@@ -236,7 +239,8 @@ export function registerBatch(program: Command, ctx: CommandContext): void {
     .addHelpText(
       'after',
       `
-Verdicts: ok, no signal (nothing keyed found), mask fail (keyed spectrum outside the shape mask), error.
+Verdicts: ok, no signal (nothing keyed found), mask fail (keyed spectrum outside the shape mask),
+not judged (too noisy to measure the shape), error.
 Exit code: 0 all files read, 1 some file gave an error, 2 bad usage, 130 interrupted.
 
 Examples:
@@ -332,6 +336,7 @@ async function runBatch(inputs: string[], o: BatchCliOptions, ctx: CommandContex
   const parts = [`${summary.ok} ok`];
   if (summary.noSignal) parts.push(`${summary.noSignal} no signal`);
   if (summary.maskFail) parts.push(`${summary.maskFail} mask fail`);
+  if (summary.notJudged) parts.push(`${summary.notJudged} not judged`);
   if (summary.errors) parts.push(`${summary.errors} error${summary.errors > 1 ? 's' : ''}`);
   ctx.warn(
     `batch: ${summary.done} of ${summary.files} files (${parts.join(', ')}); ${summary.audioS.toFixed(1)} s of audio in ${formatElapsed(wallS * 1000)}` +

@@ -1,15 +1,15 @@
 /**
  * How the keying-shape figures degrade with noise: the measurements behind MIN_EDGE_SNR_DB and
  * MIN_SPECTRUM_SNR_DB (src/core/measure/shape-snr.ts). Not a test (vitest does not pick it up):
- *   npx tsx test/shape/snr-thresholds.bench.ts [SNRs, e.g. 5,10,15,20,25]
+ *   npx tsx bench/shape-snr-thresholds.ts [SNRs, e.g. 5,10,15,20,25]
  * Signals from keyform's synthesizer with seeded white noise at keyform's SNR (key-down carrier over
  * noise in 2500 Hz, noiseSigmaForSnr); the reference is the true 10–90 % rise (what the synthesizer
  * was asked for; hard keying: the envelope's own step) and the noise-free occupied bandwidth.
  */
-import { measureShape } from '../../src/core/measure/shape.js';
-import { addNoise, noiseSigmaForSnr } from '../../src/core/signal/noise.js';
-import { synthesizeTone } from '../../src/core/signal/synth.js';
-import { planKeying } from '../../src/core/timing/plan.js';
+import { measureShape } from '../src/core/measure/shape.js';
+import { addNoise, noiseSigmaForSnr } from '../src/core/signal/noise.js';
+import { synthesizeTone } from '../src/core/signal/synth.js';
+import { planKeying } from '../src/core/timing/plan.js';
 
 const CASES = [
   { fs: 8000, wpm: 18, edge: 'raised-cosine', riseMs: 5, toneHz: 700 },

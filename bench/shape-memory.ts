@@ -1,13 +1,13 @@
 /**
  * Peak memory and time of measureShape on a synthesized recording of a given length (40 dB SNR,
  * 18 wpm, 5 ms raised-cosine edges, 700 Hz). Not a test (vitest does not pick it up):
- *   node --expose-gc --import tsx test/shape/shape-memory.bench.ts SECONDS [SAMPLE_RATE]
+ *   node --expose-gc --import tsx bench/shape-memory.ts SECONDS [SAMPLE_RATE]
  * Peak RSS is sampled at every progress callback and at the end.
  */
-import { measureShape } from '../../src/core/measure/shape.js';
-import { addNoise, noiseSigmaForSnr } from '../../src/core/signal/noise.js';
-import { synthesizeTone } from '../../src/core/signal/synth.js';
-import { planKeying } from '../../src/core/timing/plan.js';
+import { measureShape } from '../src/core/measure/shape.js';
+import { addNoise, noiseSigmaForSnr } from '../src/core/signal/noise.js';
+import { synthesizeTone } from '../src/core/signal/synth.js';
+import { planKeying } from '../src/core/timing/plan.js';
 
 const seconds = Number(process.argv[2] ?? 158);
 const fs = Number(process.argv[3] ?? 48000);
