@@ -71,6 +71,16 @@ export const RECORDINGS: readonly RecordingSpec[] = [
 const LEVEL_DB = -6;
 
 /**
+ * Peak level of the keyed tone [dBFS]: −6 dBFS, or lower where the added noise would otherwise clip
+ * (tone peak plus four noise standard deviations kept below 0.95 of full scale).
+ */
+function levelDbFor(spec: RecordingSpec): number {
+  if (spec.snrDb === null) return LEVEL_DB;
+  const sigmaPerAmplitude = noiseSigmaForSnr(1, spec.sampleRate, spec.snrDb);
+  return Math.min(LEVEL_DB, 20 * Math.log10(0.95 / (1 + 4 * sigmaPerAmplitude)));
+}
+
+/**
  * Re-times a plan as a hand-sent message: the speed glides linearly from `startWpm` to `endWpm`,
  * dashes last `dahDitRatio` units, word gaps `wordGapUnits`, and every mark and gap gets seeded
  * Gaussian jitter of `jitterPct` % of the local unit.
@@ -113,14 +123,14 @@ export function makeRecording(spec: RecordingSpec): Float32Array {
     marks,
     sampleRate: spec.sampleRate,
     toneHz: spec.toneHz,
-    levelDb: LEVEL_DB,
+    levelDb: levelDbFor(spec),
     edge: spec.edge,
     riseMs: spec.riseMs,
     padMs: 600,
   });
   const samples = tone.samples;
   if (spec.fading) applyFading(samples, spec.sampleRate, spec.fading);
-  if (spec.snrDb !== null) addNoise(samples, noiseSigmaForSnr(10 ** (LEVEL_DB / 20), spec.sampleRate, spec.snrDb), spec.seed);
+  if (spec.snrDb !== null) addNoise(samples, noiseSigmaForSnr(10 ** (levelDbFor(spec) / 20), spec.sampleRate, spec.snrDb), spec.seed);
   for (let i = 0; i < samples.length; i++) samples[i] = Math.max(-1, Math.min(1, samples[i]!));
   return samples;
 }
