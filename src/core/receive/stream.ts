@@ -6,7 +6,7 @@ import { Mixer } from './mixer.js';
 import { LevelSlicer } from './slicer.js';
 import { SnrEstimator } from './snr.js';
 import { findTone } from './tone.js';
-import { fitToneLine, ToneTracker, type ToneLine } from './tone-track.js';
+import { fitToneLineFrames, ToneTracker, type ToneLine } from './tone-track.js';
 import { buildCodeTrie, type CodeTrie } from './trie.js';
 import { SequenceDecoder, type DurationModel, type Segment } from './viterbi.js';
 
@@ -208,15 +208,17 @@ export class StreamDecoder {
     this.toneStartHz = toneHz;
     const spf = Math.max(1, Math.round((this.sampleRate * FRAME_MS) / 1000));
     this.frameMs = (spf * 1000) / this.sampleRate;
-    // A drifting tone: mix the pre-roll along the line fitted to it, a few frames at a time.
-    const line = fitToneLine(samples, this.sampleRate, toneHz);
+    let mixer = new Mixer(this.sampleRate, toneHz, spf);
+    this.ensureFrameBuffers(samples.length);
+    let nFrames = mixer.process(samples, this.frameRe, this.frameIm);
+    // A drifting tone: fit a line to it over the pre-roll's frames, and mix the pre-roll again
+    // along that line, a few frames at a time.
+    const line = fitToneLineFrames(this.frameRe, this.frameIm, nFrames, 1000 / this.frameMs, toneHz);
     const drifting = line.segments > 0 && Math.abs(line.rateHzPerS) * (samples.length / this.sampleRate) > 1;
     this.toneLine = drifting ? line : { startHz: toneHz, rateHzPerS: 0, segments: 0 };
-    const mixer = new Mixer(this.sampleRate, this.toneLine.startHz, spf);
-    this.ensureFrameBuffers(samples.length);
-    let nFrames = 0;
-    if (!drifting) nFrames = mixer.process(samples, this.frameRe, this.frameIm);
-    else {
+    if (drifting) {
+      mixer = new Mixer(this.sampleRate, line.startHz, spf);
+      nFrames = 0;
       const block = PREROLL_RETUNE_FRAMES * spf;
       for (let a = 0; a < samples.length; a += block) {
         mixer.setTone(line.startHz + line.rateHzPerS * ((a + block / 2) / this.sampleRate));

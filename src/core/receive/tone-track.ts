@@ -2,7 +2,8 @@
  * Tone tracking for the receiver: a fit of the tone's drift over the pre-roll, and a Kalman filter
  * that follows the tone and its drift rate from the phase steps of key-down slots afterwards.
  */
-import { findTone } from './tone.js';
+import FFT from 'fft.js';
+import { Mixer } from './mixer.js';
 
 /** A straight-line tone track: toneHz(t) = startHz + rateHzPerS · t. */
 export interface ToneLine {
@@ -20,27 +21,68 @@ const SEARCH_HZ = 60;
 const SEGMENT_PROMINENCE_DB = 12;
 
 /**
- * Fits a straight line to the tone over a stretch of audio: the strongest peak within ±60 Hz of
- * `toneHz` in each second (findTone on the segment), weighted by its prominence, least squares.
- * Segments where the peak does not stand 12 dB over the band's median (no keying, or a weak
- * signal) are left out; with fewer than three, the line is flat at `toneHz`.
- * @param samples - Audio (e.g. the receiver's pre-roll, a few seconds).
- * @param sampleRate - Sample rate [Hz], 8000…192000.
- * @param toneHz - Tone found over the whole stretch [Hz].
- * @returns Tone at the first sample [Hz] and drift rate [Hz/s].
- * @example fitToneLine(toneRisingBy2HzPerS, 8000, 706).rateHzPerS //=> ≈ 2
+ * Fits a straight line to the tone over a stretch of complex baseband frames (mixed at `toneHz`):
+ * the strongest spectral peak within ±60 Hz in each second (Welch average of three Hann windows
+ * of half a second, fft.js, parabolic interpolation of the log power), weighted by its prominence over the
+ * band's median, least squares. Segments where the peak does not stand 12 dB clear (no keying, or
+ * a weak signal) are left out; with fewer than three, the line is flat at `toneHz`.
+ * @param frameRe - Real parts of the frames. @param frameIm - Imaginary parts.
+ * @param count - Frames to use. @param frameRateHz - Frames per second (> 2·60 Hz).
+ * @param toneHz - Tone the frames were mixed with [Hz].
+ * @returns Tone at the first frame [Hz] and drift rate [Hz/s].
+ * @example fitToneLineFrames(re, im, 2400, 400, 706).rateHzPerS //=> ≈ 2 for a tone rising 2 Hz/s
  */
-export function fitToneLine(samples: Float32Array, sampleRate: number, toneHz: number): ToneLine {
-  const seg = Math.round(SEGMENT_S * sampleRate);
+export function fitToneLineFrames(frameRe: Float64Array, frameIm: Float64Array, count: number, frameRateHz: number, toneHz: number): ToneLine {
+  const seg = Math.round(SEGMENT_S * frameRateHz);
+  // Welch average inside each segment: three half-overlapping windows of half a segment (bins of
+  // about 2 Hz, as in findTone), so a noise bin rarely stands out as a carrier would.
+  const win = Math.max(8, seg >> 1);
+  const hop = win >> 1;
+  let size = 1;
+  while (size < win) size *= 2;
+  const fft = new FFT(size);
+  const input = fft.createComplexArray();
+  const out = fft.createComplexArray();
+  const power = new Float64Array(size);
+  const binHz = frameRateHz / size;
+  const kMax = Math.min(size / 2 - 2, Math.floor(SEARCH_HZ / binHz));
+  const band: number[] = [];
   const t: number[] = [];
   const f: number[] = [];
   const w: number[] = [];
-  for (let a = 0; a + seg <= samples.length; a += seg) {
-    const est = findTone(samples.subarray(a, a + seg), sampleRate, { minHz: toneHz - SEARCH_HZ, maxHz: toneHz + SEARCH_HZ });
-    if (est.prominenceDb < SEGMENT_PROMINENCE_DB) continue;
-    t.push((a + seg / 2) / sampleRate);
-    f.push(est.toneHz);
-    w.push(est.prominenceDb);
+  for (let a = 0; a + seg <= count; a += seg) {
+    power.fill(0);
+    for (let b = a; b + win <= a + seg; b += hop) {
+      input.fill(0);
+      for (let i = 0; i < win; i++) {
+        const h = 0.5 - 0.5 * Math.cos((2 * Math.PI * i) / win);
+        input[2 * i] = frameRe[b + i]! * h;
+        input[2 * i + 1] = frameIm[b + i]! * h;
+      }
+      fft.transform(out, input);
+      for (let k = 0; k < size; k++) power[k] = power[k]! + out[2 * k]! ** 2 + out[2 * k + 1]! ** 2;
+    }
+    const at = (k: number): number => power[(k + size) % size]!; // bin k of a signed frequency
+    let kPeak = 0;
+    band.length = 0;
+    for (let k = -kMax; k <= kMax; k++) {
+      band.push(at(k));
+      if (at(k) > at(kPeak)) kPeak = k;
+    }
+    band.sort((x, y) => x - y);
+    const median = band[band.length >> 1]!;
+    const peak = at(kPeak);
+    if (!(peak > 0)) continue;
+    const prominenceDb = median > 0 ? 10 * Math.log10(peak / median) : 300;
+    if (prominenceDb < SEGMENT_PROMINENCE_DB) continue;
+    const l = Math.log(at(kPeak - 1) + 1e-300);
+    const c = Math.log(peak);
+    const r = Math.log(at(kPeak + 1) + 1e-300);
+    const den = l - 2 * c + r;
+    const delta = den < 0 ? Math.max(-0.5, Math.min(0.5, (0.5 * (l - r)) / den)) : 0;
+    t.push((a + seg / 2) / frameRateHz);
+    f.push(toneHz + (kPeak + delta) * binHz);
+    w.push(Math.min(prominenceDb, 60));
   }
   if (t.length < 3) return { startHz: toneHz, rateHzPerS: 0, segments: 0 };
   let sw = 0, st = 0, sf = 0;
@@ -51,6 +93,22 @@ export function fitToneLine(samples: Float32Array, sampleRate: number, toneHz: n
   for (let i = 0; i < t.length; i++) { stt += w[i]! * (t[i]! - tm) ** 2; stf += w[i]! * (t[i]! - tm) * (f[i]! - fm); }
   const rate = stt > 0 ? stf / stt : 0;
   return { startHz: fm - rate * tm, rateHzPerS: rate, segments: t.length };
+}
+
+/**
+ * The same fit from audio samples: mixes them to baseband at `toneHz` (frames of about 2.5 ms)
+ * and calls fitToneLineFrames.
+ * @param samples - Audio (e.g. the receiver's pre-roll, a few seconds). @param sampleRate - [Hz].
+ * @param toneHz - Tone found over the whole stretch [Hz].
+ * @example fitToneLine(toneRisingBy2HzPerS, 8000, 706).rateHzPerS //=> ≈ 2
+ */
+export function fitToneLine(samples: Float32Array, sampleRate: number, toneHz: number): ToneLine {
+  const spf = Math.max(1, Math.round(sampleRate / 400));
+  const mixer = new Mixer(sampleRate, toneHz, spf);
+  const re = new Float64Array(Math.ceil(samples.length / spf) + 1);
+  const im = new Float64Array(re.length);
+  const n = mixer.process(samples, re, im);
+  return fitToneLineFrames(re, im, n, sampleRate / spf, toneHz);
 }
 
 export interface ToneTrackerOptions {

@@ -104,6 +104,8 @@ export class SequenceDecoder {
   /** Per slot: the best element-gap state a long dot / long dash may follow, and its score. */
   private readonly longSrcScore: [Float64Array, Float64Array];
   private readonly longSrcState: [Int16Array, Int16Array];
+  /** Per node: bit 0 if its dot child is the long dot node, bit 1 if its dash child is the long dash node. */
+  private readonly longMask: Uint8Array;
   private blockSlots = 4;
   private minWeakSlots = 3;
   private tables!: { dit: DurationTable; dah: DurationTable; egap: DurationTable; lgap: DurationTable; wgap: DurationTable };
@@ -140,6 +142,9 @@ export class SequenceDecoder {
     this.llr = new Float64Array(H);
     this.longSrcScore = [new Float64Array(H).fill(NEG), new Float64Array(H).fill(NEG)];
     this.longSrcState = [new Int16Array(H).fill(-1), new Int16Array(H).fill(-1)];
+    this.longMask = new Uint8Array(this.n);
+    for (const p of trie.longDotParents) this.longMask[p] |= 1;
+    for (const p of trie.longDashParents) this.longMask[p] |= 2;
     this.rowBase = new Int32Array(H);
     this.lastAlive = new Int32Array(this.nStates).fill(-1_000_000);
     this.lastAlive[this.stS] = 0;
@@ -305,24 +310,25 @@ export class SequenceDecoder {
     let top = NEG;
     for (let s = 0; s < S; s++) if (score[base + s]! > top) top = score[base + s]!;
     const floor = top - BEAM;
+    // ... and, on the way, where a long dot / long dash could start after this slot: the best live
+    // element gap among the nodes that lead to them.
+    const longMask = this.longMask;
+    let dotSrc = NEG, dotState = -1, dashSrc = NEG, dashState = -1;
     for (let s = 0; s < S; s++) {
       const v = score[base + s]!;
       if (v <= NEG) continue;
-      if (v < floor) score[base + s] = NEG;
-      else lastAlive[s] = t;
-    }
-    // Where a long dot / long dash could start after this slot.
-    for (let kind = 0; kind < 2; kind++) {
-      const parents = kind === 0 ? this.trie.longDotParents : this.trie.longDashParents;
-      let bs = NEG;
-      let bState = -1;
-      for (let i = 0; i < parents.length; i++) {
-        const v = score[base + n + parents[i]!]!;
-        if (v > bs) { bs = v; bState = n + parents[i]!; }
+      if (v < floor) { score[base + s] = NEG; continue; }
+      lastAlive[s] = t;
+      if (s >= n && s < 2 * n) {
+        const m = longMask[s - n]!;
+        if ((m & 1) !== 0 && v > dotSrc) { dotSrc = v; dotState = s; }
+        if ((m & 2) !== 0 && v > dashSrc) { dashSrc = v; dashState = s; }
       }
-      this.longSrcScore[kind]![ti] = bs;
-      this.longSrcState[kind]![ti] = bState;
     }
+    this.longSrcScore[0][ti] = dotSrc;
+    this.longSrcState[0][ti] = dotState;
+    this.longSrcScore[1][ti] = dashSrc;
+    this.longSrcState[1][ti] = dashState;
     // Best character ending at this slot, for the gaps that will close it.
     let bc = NEG;
     let bcNode = -1;
