@@ -9,6 +9,8 @@ export { pickChannel } from './channel.js';
 export { findTone, type ToneEstimate } from './tone.js';
 export { estimateTiming, type TimingEstimate } from './estimate-timing.js';
 export { lnI0 } from './lni0.js';
+export { editDistance } from './edit-distance.js';
+export { fitToneLine, fitToneLineFrames, ToneTracker, type ToneLine } from './tone-track.js';
 
 /** Samples handed to the stream decoder at a time by decodeSamples. */
 const CHUNK = 1 << 16;
