@@ -13,7 +13,7 @@ import type { Baseband } from './shape-analytic.js';
  * and seeded noise (test/shape/snr-thresholds.bench.ts: 5 ms raised-cosine edges at 18 wpm / 8 kHz and
  * 25 wpm / 48 kHz, 2.5 ms linear at 20 wpm / 16 kHz, hard keying at 18 wpm / 24 kHz; three seeds each):
  * at 20 dB the median 10–90 % rise of the shaped edges read 4–8 % short, at 15 dB up to 19 % short,
- * at 10 dB up to 90 % off (table in docs/shape.md). Applied to the recording's average and to each
+ * at 10 dB up to 90 % off (table in the README, keyform shape section). Applied to the recording's average and to each
  * mark's own SNR (measureShape).
  */
 export const MIN_EDGE_SNR_DB = 20;
