@@ -141,7 +141,7 @@ export function planKeying(message: string, options: PlanOptions): KeyingPlan {
     everyMs = checkRange('every', options.everyS, 0.001, 86_400, 's') * 1000;
     if (repeat > 1 && onAirMs > everyMs) {
       throw new InputError(
-        `the message lasts ${(onAirMs / 1000).toFixed(3)} s with PTT times, longer than the repeat period of ${options.everyS} s`,
+        `the message lasts ${(onAirMs / 1000).toFixed(3)} s${pttLeadMs + pttTailMs > 0 ? ' with PTT lead and tail' : ''}, longer than the repeat period of ${options.everyS} s`,
       );
     }
   }
