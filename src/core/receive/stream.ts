@@ -497,33 +497,45 @@ export class StreamDecoder {
   }
 
   /**
-   * Moves a mark's edges from slot boundaries to where the frame amplitude (frames of about
-   * 2.5 ms) crosses halfway between the noise and the mark's own level, interpolated between frame
-   * centres — the 50 % point, where keyform's synthesizer centres its edges. Left on the slot
-   * boundaries when the frames are too noisy to say.
+   * Moves a mark's edges from slot boundaries to where the envelope crosses halfway between the
+   * local key-up level and the mark's own level — the 50 % point, where keyform's synthesizer
+   * centres its edges. Works on the ring of frame powers (frames of about 2.5 ms): the key-up power
+   * σ² is measured on the frames just outside the decided mark, the noise-corrected amplitude
+   * √max(0, |z|² − σ²) of each frame is compared with half the mark's (E|s + n|² = s² + σ² for
+   * noise n independent of the carrier s [analytic], so this is unbiased where the amplitude of
+   * |z| would be pulled up by the noise), and the crossing is interpolated linearly between frame
+   * centres (the boxcar frame's group delay: half a frame, less half a sample). Only within one slot (about a quarter
+   * unit) of the decided edge; left on the slot boundaries when the mark does not stand clear of
+   * the noise or no single clean crossing is found.
+   * @param aSlot - First slot of the decided mark. @param bSlot - Slot after its end.
+   * @param startMs - Decided start [ms]. @param endMs - Decided end [ms].
+   * @returns Refined [start, end] [ms].
    */
   private refineEdges(aSlot: number, bSlot: number, startMs: number, endMs: number): [number, number] {
     const k = this.framesPerSlot;
     const R = this.frameAmp.length;
     const f0 = aSlot * k;
     const f1 = bSlot * k;
-    if (this.frameCount - (f0 - k) > R || f1 + k > this.frameCount) return [startMs, endMs];
-    const amp = (f: number): number => this.frameAmp[f % R]!;
-    let sum = 0;
-    let count = 0;
-    const inner = f1 - f0 > 2 * k ? k : 1;
-    for (let f = f0 + inner; f < f1 - inner; f++) {
-      sum += amp(f);
-      count++;
-    }
-    if (count === 0) return [startMs, endMs];
-    const level = sum / count;
-    const noiseAmp = 0.886 * Math.sqrt(this.slicer!.noisePow / k); // Rayleigh mean of one frame's noise
-    if (level < 3 * noiseAmp) return [startMs, endMs];
-    const half = 0.5 * (level + noiseAmp);
+    if (this.frameCount - (f0 - 2 * k) > R || f0 - 2 * k < 0 || f1 + k > this.frameCount) return [startMs, endMs];
+    const pow = (f: number): number => this.frameAmp[f % R]! ** 2;
+    // Key-up power: the frames one to two slots outside the decided edges (inside the gaps around
+    // the mark when the decision is within a slot of the truth), or the slicer's figure.
+    let gapSum = 0;
+    let gapCount = 0;
+    for (let f = f0 - 2 * k; f < f0 - k; f++, gapCount++) gapSum += pow(f);
+    for (let f = f1 + k; f < Math.min(f1 + 2 * k, this.frameCount); f++, gapCount++) gapSum += pow(f);
+    const noisePow = gapCount > 0 ? gapSum / gapCount : this.slicer!.noisePow / k;
+    const meanPow = (from: number, to: number): number | null => {
+      let sum = 0;
+      for (let f = from; f <= to; f++) sum += pow(f);
+      return to >= from ? sum / (to - from + 1) : null;
+    };
+    const amp = (f: number): number => Math.sqrt(Math.max(0, pow(f) - noisePow));
     const spf = this.mixer!.samplesPerFrame;
-    const centreMs = (f: number): number => ((this.originSample + (f + 0.5) * spf) * 1000) / this.sampleRate;
-    const crossing = (from: number, to: number, rising: boolean, near: number): number | null => {
+    // A frame averages samples f·spf … (f+1)·spf − 1: its centre is half a sample before (f + ½)·spf.
+    const centreMs = (f: number): number => ((this.originSample + (f + 0.5) * spf - 0.5) * 1000) / this.sampleRate;
+    const frameAt = (ms: number): number => ((ms * this.sampleRate) / 1000 - this.originSample + 0.5) / spf - 0.5;
+    const crossing = (half: number, from: number, to: number, rising: boolean, near: number): number | null => {
       let best: number | null = null;
       for (let f = Math.max(1, from); f <= to; f++) {
         const p = amp(f - 1);
@@ -535,8 +547,28 @@ export class StreamDecoder {
       }
       return best;
     };
-    const rise = crossing(f0 - k, f0 + k, true, startMs);
-    const fall = crossing(f1 - k, f1 + k, false, endMs);
+    // First pass: the mark's level from the frames a slot inside the decided edges.
+    const inner = f1 - f0 > 2 * k ? k : 1;
+    const p1 = meanPow(f0 + inner, f1 - inner - 1);
+    if (p1 === null) return [startMs, endMs];
+    const markAmp = Math.sqrt(Math.max(0, p1 - noisePow));
+    // Mark amplitude at least 3 times the noise's RMS amplitude, or the crossing is left alone.
+    if (markAmp < 3 * Math.sqrt(noisePow)) return [startMs, endMs];
+    let rise = crossing(0.5 * markAmp, f0 - k, f0 + k, true, startMs);
+    let fall = crossing(0.5 * markAmp, f1 - k, f1 + k, false, endMs);
+    // Second pass: the decided edges may be a slot off, so the first level can include edge frames;
+    // take it again over the middle half of the refined mark (clear of both edges) and recross.
+    if (rise !== null && fall !== null && fall > rise) {
+      const quarter = (fall - rise) / 4;
+      const p2 = meanPow(Math.ceil(frameAt(rise + quarter)), Math.floor(frameAt(fall - quarter)));
+      if (p2 !== null) {
+        const amp2 = Math.sqrt(Math.max(0, p2 - noisePow));
+        if (amp2 >= 3 * Math.sqrt(noisePow)) {
+          rise = crossing(0.5 * amp2, f0 - k, f0 + k, true, rise) ?? rise;
+          fall = crossing(0.5 * amp2, f1 - k, f1 + k, false, fall) ?? fall;
+        }
+      }
+    }
     const s = rise ?? startMs;
     const e = fall ?? endMs;
     return e > s ? [s, e] : [startMs, endMs];
