@@ -19,6 +19,9 @@ export class Mixer {
   private accIm = 0;
   private count = 0;
   private toneHzValue = 0;
+  /** D = (1/n)·Σ e^(−j·2ω·m) over one frame: the boxcar's gain at the image (twice the tone). */
+  private imgRe = 0;
+  private imgIm = 0;
 
   /**
    * @param sampleRate - Input sample rate [Hz].
@@ -67,13 +70,27 @@ export class Mixer {
     }
     this.stepRe = Math.cos(w * n);
     this.stepIm = -Math.sin(w * n);
+    // Geometric sum in closed form: (1 − e^(−j2ωn)) / (n·(1 − e^(−j2ω))), or 1 where 2ω is a multiple of 2π.
+    const den = Math.sin(w);
+    if (Math.abs(den) < 1e-12) {
+      this.imgRe = 1;
+      this.imgIm = 0;
+    } else {
+      const mag = Math.sin(w * n) / (n * den);
+      this.imgRe = mag * Math.cos(w * (n - 1));
+      this.imgIm = -mag * Math.sin(w * (n - 1));
+    }
   }
 
   /**
    * Mixes a chunk; writes complete frames (sum / samplesPerFrame) to `outRe`/`outIm` from index 0
    * and returns how many were written. The arrays must hold ⌈chunk.length / samplesPerFrame⌉ + 1.
+   * With `gainRe`/`gainIm`, also writes each frame's image gain G: a real carrier at the mixing
+   * tone, a·cos(ωn + θ), gives the frame z = c + G·conj(c) with c = (a/2)·e^(jθ) (analytic: the
+   * e^(−j(ωn+θ)) half lands at −2ω, where the boxcar does not null it), so
+   * c = (z − G·conj(z)) / (1 − |G|²).
    */
-  process(chunk: Float32Array, outRe: Float64Array, outIm: Float64Array): number {
+  process(chunk: Float32Array, outRe: Float64Array, outIm: Float64Array, gainRe?: Float64Array, gainIm?: Float64Array): number {
     const n = this.samplesPerFrame;
     const tabRe = this.tabRe;
     const tabIm = this.tabIm;
@@ -95,6 +112,13 @@ export class Mixer {
         const pi = this.pi;
         outRe[frames] = (re * pr - im * pi) / n;
         outIm[frames] = (re * pi + im * pr) / n;
+        if (gainRe && gainIm) {
+          // G = D·p², p = e^(−jω·n0) the phasor at the frame's first sample.
+          const p2r = pr * pr - pi * pi;
+          const p2i = 2 * pr * pi;
+          gainRe[frames] = this.imgRe * p2r - this.imgIm * p2i;
+          gainIm[frames] = this.imgRe * p2i + this.imgIm * p2r;
+        }
         frames++;
         re = 0;
         im = 0;

@@ -95,6 +95,9 @@ export class StreamDecoder {
   private mixer: Mixer | null = null;
   private frameRe = new Float64Array(0);
   private frameIm = new Float64Array(0);
+  /** Each frame's image gain (see Mixer.process), to take the image out of the edge-refining ring. */
+  private frameGRe = new Float64Array(0);
+  private frameGIm = new Float64Array(0);
   private frameMs = FRAME_MS;
   private framesPerSlot = 1;
   private slotMs = FRAME_MS;
@@ -210,7 +213,7 @@ export class StreamDecoder {
     this.frameMs = (spf * 1000) / this.sampleRate;
     let mixer = new Mixer(this.sampleRate, toneHz, spf);
     this.ensureFrameBuffers(samples.length);
-    let nFrames = mixer.process(samples, this.frameRe, this.frameIm);
+    let nFrames = mixer.process(samples, this.frameRe, this.frameIm, this.frameGRe, this.frameGIm);
     // A drifting tone: fit a line to it over the pre-roll's frames, and mix the pre-roll again
     // along that line, a few frames at a time.
     const line = fitToneLineFrames(this.frameRe, this.frameIm, nFrames, 1000 / this.frameMs, toneHz);
@@ -222,7 +225,10 @@ export class StreamDecoder {
       const block = PREROLL_RETUNE_FRAMES * spf;
       for (let a = 0; a < samples.length; a += block) {
         mixer.setTone(line.startHz + line.rateHzPerS * ((a + block / 2) / this.sampleRate));
-        nFrames += mixer.process(samples.subarray(a, Math.min(samples.length, a + block)), this.frameRe.subarray(nFrames), this.frameIm.subarray(nFrames));
+        nFrames += mixer.process(
+          samples.subarray(a, Math.min(samples.length, a + block)),
+          this.frameRe.subarray(nFrames), this.frameIm.subarray(nFrames), this.frameGRe.subarray(nFrames), this.frameGIm.subarray(nFrames),
+        );
       }
     }
     const est = this.bestCandidate(estimateTimingCandidates(this.frameRe, this.frameIm, nFrames, this.frameMs, CANDIDATES), nFrames);
@@ -252,9 +258,11 @@ export class StreamDecoder {
     this.phase = 'run';
     const copyRe = this.frameRe.slice(0, nFrames);
     const copyIm = this.frameIm.slice(0, nFrames);
+    const copyGRe = this.frameGRe.slice(0, nFrames);
+    const copyGIm = this.frameGIm.slice(0, nFrames);
     // The pre-roll was mixed before any tracking: retuning now would not change these frames.
     this.replaying = true;
-    for (let i = 0; i < nFrames; i++) this.frame(copyRe[i]!, copyIm[i]!);
+    for (let i = 0; i < nFrames; i++) this.frame(copyRe[i]!, copyIm[i]!, copyGRe[i]!, copyGIm[i]!);
     this.replaying = false;
     this.preroll = new Float32Array(0);
     this.preLen = 0;
@@ -361,6 +369,8 @@ export class StreamDecoder {
     if (this.frameRe.length < need) {
       this.frameRe = new Float64Array(need);
       this.frameIm = new Float64Array(need);
+      this.frameGRe = new Float64Array(need);
+      this.frameGIm = new Float64Array(need);
     }
   }
 
@@ -371,13 +381,20 @@ export class StreamDecoder {
     for (let off = 0; off < chunk.length; off += block) {
       const part = chunk.subarray(off, Math.min(chunk.length, off + block));
       this.ensureFrameBuffers(part.length);
-      const n = mixer.process(part, this.frameRe, this.frameIm);
-      for (let i = 0; i < n; i++) this.frame(this.frameRe[i]!, this.frameIm[i]!);
+      const n = mixer.process(part, this.frameRe, this.frameIm, this.frameGRe, this.frameGIm);
+      for (let i = 0; i < n; i++) this.frame(this.frameRe[i]!, this.frameIm[i]!, this.frameGRe[i]!, this.frameGIm[i]!);
     }
   }
 
-  private frame(re: number, im: number): void {
-    this.frameAmp[this.frameCount++ % this.frameAmp.length] = Math.hypot(re, im);
+  /** One mixer frame: `re`, `im` the frame, `gr`, `gi` its image gain. */
+  private frame(re: number, im: number, gr: number, gi: number): void {
+    // The ring keeps the carrier's amplitude with the image at twice the tone taken out
+    // (c = (z − G·conj(z)) / (1 − |G|²), see Mixer.process): left in, it ripples the frame amplitude
+    // by up to ±10 % at 700 Hz and shifts the edges by a few tenths of a millisecond.
+    const g2 = gr * gr + gi * gi;
+    const cr = (re - (gr * re + gi * im)) / (1 - g2);
+    const ci = (im - (gi * re - gr * im)) / (1 - g2);
+    this.frameAmp[this.frameCount++ % this.frameAmp.length] = g2 < 0.25 ? Math.hypot(cr, ci) : Math.hypot(re, im);
     this.slotRe += re;
     this.slotIm += im;
     if (++this.slotFill === this.framesPerSlot) {
