@@ -8,7 +8,7 @@ export { StreamDecoder, PREROLL_MS, type DecodeOptions, type DecodeResult } from
 export { pickChannel } from './channel.js';
 export { findTone, type ToneEstimate } from './tone.js';
 export { estimateTiming, type TimingEstimate } from './estimate-timing.js';
-export { lnI0 } from './lni0.js';
+export { lnI0, lnI0Fast } from './lni0.js';
 export { editDistance } from './edit-distance.js';
 export { fitToneLine, fitToneLineFrames, ToneTracker, type ToneLine } from './tone-track.js';
 

@@ -1,5 +1,5 @@
 import type { CodeTrie } from './trie.js';
-import { lnI0 } from './lni0.js';
+import { lnI0Fast } from './lni0.js';
 
 /** Mean segment lengths [slots] the decoder expects; updated as the speed is tracked. */
 export interface DurationModel {
@@ -49,9 +49,9 @@ const CHAR_PRIOR = 0;
  * @example markScore(0, 0) //=> 0
  */
 export function markScore(x: number, q: number): number {
-  const full = lnI0(x) - q;
-  const half = lnI0(0.5 * x) - 0.25 * q + WEAKER_PRIOR;
-  const quarter = lnI0(0.25 * x) - q / 16 + WEAKER_PRIOR_12DB;
+  const full = lnI0Fast(x) - q;
+  const half = lnI0Fast(0.5 * x) - 0.25 * q + WEAKER_PRIOR;
+  const quarter = lnI0Fast(0.25 * x) - q / 16 + WEAKER_PRIOR_12DB;
   return Math.max(full, half, quarter);
 }
 
@@ -376,7 +376,7 @@ export class SequenceDecoder {
       const x = 2 * Math.sqrt(dr * dr + di * di);
       const q = this.yQ[ei]! - this.yQ[si]!;
       // Only marks of a plausible length may be weaker than the tracked level: a click is short.
-      sum += b - a >= this.minWeakSlots ? markScore(x, q) : lnI0(x) - q;
+      sum += b - a >= this.minWeakSlots ? markScore(x, q) : lnI0Fast(x) - q;
     }
     return sum;
   }
