@@ -70,7 +70,8 @@ function percentile(sorted: ArrayLike<number>, q: number): number {
 
 /** Median of env[i0, i1). */
 function medianOf(env: Float32Array, i0: number, i1: number): number {
-  const a = Array.from(env.subarray(Math.max(0, i0), Math.max(i0 + 1, Math.min(env.length, i1)))).sort((x, y) => x - y);
+  // A typed copy sorts numerically without a comparator: far less work and garbage than an Array.
+  const a = env.slice(Math.max(0, i0), Math.max(i0 + 1, Math.min(env.length, i1))).sort();
   return percentile(a, 0.5);
 }
 
@@ -248,9 +249,9 @@ export function measureEdges(env: Float32Array, sampleRate: number, options: Edg
   const counts: EdgeCounts = { bumps: 0, kept: 0, tooShort: 0, tooNoisy: 0, endsInMark: false, noKeyDown: false };
   // Levels from a decimated sorted copy (bounded cost on long recordings).
   const stride = Math.max(1, Math.floor(N / 200_000));
-  const pick: number[] = [];
-  for (let i = 0; i < N; i += stride) pick.push(env[i]!);
-  pick.sort((a, b) => a - b);
+  const pick = new Float32Array(Math.ceil(N / stride));
+  for (let i = 0, k = 0; i < N; i += stride, k++) pick[k] = env[i]!;
+  pick.sort(); // typed arrays sort numerically, without a comparator
   const onLevel = percentile(pick, 0.95);
   const offLevel = percentile(pick, 0.05);
   const threshold = offLevel + 0.5 * (onLevel - offLevel);
