@@ -1,5 +1,5 @@
 import { defineConfig } from 'vitest/config';
-import SummaryReporter from './test/summary-reporter.js';
+import SummaryReporter from './testkit/summary-reporter.js';
 
 export default defineConfig({
   test: {

@@ -4,7 +4,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { encodeWav } from '../../src/io/wav-write.js';
-import { runCli } from '../helpers/cli.js';
+import { runCli } from '../../testkit/cli.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'keyform-stdin-'));
 

@@ -4,7 +4,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import WavDecoder from 'wav-decoder';
 import { describe, expect, it } from 'vitest';
-import { runCli } from '../helpers/cli.js';
+import { runCli } from '../../testkit/cli.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'keyform-encode-'));
 

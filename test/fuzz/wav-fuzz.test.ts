@@ -16,7 +16,7 @@ import { RawPcmParser, WavStreamParser } from '../../src/io/wav-stream.js';
 import { encodeWav, type WavEncoding } from '../../src/io/wav-write.js';
 import { synthesizeTone } from '../../src/core/signal/synth.js';
 import { planKeying } from '../../src/core/timing/plan.js';
-import { damagedRecording, mutatedWav } from './mutate.js';
+import { damagedRecording, mutatedWav } from '../../testkit/wav-mutate.js';
 
 const RUNS = Number(process.env.FUZZ_RUNS ?? 3000);
 /** Per-test time limit, scaled for long runs (npm run fuzz) [ms]. */

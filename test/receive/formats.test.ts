@@ -11,7 +11,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { synthesizeTone } from '../../src/core/signal/synth.js';
 import { planKeying } from '../../src/core/timing/plan.js';
 import { encodeWav, type WavEncoding } from '../../src/io/wav-write.js';
-import { runCli } from '../helpers/cli.js';
+import { runCli } from '../../testkit/cli.js';
 
 const TEXT = 'Q7ZKT DE Q3ABC';
 const dir = mkdtempSync(join(tmpdir(), 'keyform-fmt-'));

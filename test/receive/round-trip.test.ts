@@ -16,7 +16,7 @@ import { synthesizeTone } from '../../src/core/signal/synth.js';
 import { planKeying } from '../../src/core/timing/plan.js';
 import { decodeWavBytes } from '../../src/io/wav-read.js';
 import { encodeWav } from '../../src/io/wav-write.js';
-import { runCli } from '../helpers/cli.js';
+import { runCli } from '../../testkit/cli.js';
 
 /** Characters a receiver prints exactly as they are written (so the text compares directly). */
 const SELF_SPELLED: string[] = [

@@ -11,7 +11,7 @@ import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { decodeSamples, pickChannel } from '../../src/core/receive/index.js';
 import { decodeWavBytes } from '../../src/io/wav-read.js';
-import { runCli } from '../helpers/cli.js';
+import { runCli } from '../../testkit/cli.js';
 
 /** ITU-R M.1677-1 Part I §1.1 patterns for the characters these tests send. */
 const M1677: Record<string, string> = {

@@ -6,7 +6,7 @@ import { addNoise, noiseSigmaForSnr } from '../../src/core/signal/noise.js';
 import { synthesizeTone } from '../../src/core/signal/synth.js';
 import { planKeying } from '../../src/core/timing/plan.js';
 import { encodeWav } from '../../src/io/wav-write.js';
-import { runCli } from '../helpers/cli.js';
+import { runCli } from '../../testkit/cli.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'keyform-shape-'));
 

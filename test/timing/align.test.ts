@@ -4,7 +4,7 @@ import { planElementsFromJson } from '../../src/core/measure/timing-plan.js';
 import { planKeying } from '../../src/core/timing/plan.js';
 import { planToJson } from '../../src/io/export.js';
 import type { Interval } from '../../src/core/timeline.js';
-import { keyedMarks, M1677 } from './keyed-marks.js';
+import { keyedMarks, M1677 } from '../../testkit/keyed-marks.js';
 
 const MESSAGE = 'Q7ZKT TEST DE Q3ABC';
 const WPM = 20;

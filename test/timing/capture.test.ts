@@ -7,7 +7,7 @@ import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { captureFromMarks, parseCapture, readCaptureFile, timeUnitFromHeader } from '../../src/io/capture.js';
-import { keyedMarks, standardLengths } from './keyed-marks.js';
+import { keyedMarks, standardLengths } from '../../testkit/keyed-marks.js';
 
 describe('logic-capture CSV', () => {
   const plan = planKeying('Q7ZKT TEST DE Q3ABC', { wpm: 25, weightPct: 55 });

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../src/core/errors.js';
 import { measureTiming } from '../../src/core/measure/timing.js';
-import { keyedMarks, standardLengths, symbolCounts } from './keyed-marks.js';
+import { keyedMarks, standardLengths, symbolCounts } from '../../testkit/keyed-marks.js';
 
 const MESSAGE = 'Q7ZKT TEST DE Q3ABC';
 

@@ -3,8 +3,8 @@ import { existsSync, mkdtempSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { runCli } from '../helpers/cli.js';
-import { M1677 } from './keyed-marks.js';
+import { runCli } from '../../testkit/cli.js';
+import { M1677 } from '../../testkit/keyed-marks.js';
 
 /**
  * WAV recordings made by Debian's `sox` (an independent generator): a 600 Hz tone for each mark and

@@ -6,8 +6,8 @@ import { planKeying } from '../../src/core/timing/plan.js';
 import { synthesizeTone } from '../../src/core/signal/synth.js';
 import { captureFromMarks } from '../../src/io/capture.js';
 import { encodeWav } from '../../src/io/wav-write.js';
-import { runCli } from '../helpers/cli.js';
-import { keyedMarks, standardLengths } from './keyed-marks.js';
+import { runCli } from '../../testkit/cli.js';
+import { keyedMarks, standardLengths } from '../../testkit/keyed-marks.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'keyform-timing-'));
 const MESSAGE = 'Q7ZKT TEST DE Q3ABC';

@@ -2,7 +2,7 @@
  * Test generator of keyed marks built straight from the definitions, independent of keyform's
  * planner: patterns typed from ITU-R M.1677-1 and explicit mark and gap lengths in ms.
  */
-import { gaussianSource, seededRandom } from '../../src/core/signal/noise.js';
+import { gaussianSource, seededRandom } from '../src/core/signal/noise.js';
 
 /** ITU-R M.1677-1 patterns of the letters and figures the tests send (typed from the Recommendation). */
 export const M1677: Record<string, string> = {

@@ -1,6 +1,6 @@
 import { PassThrough } from 'node:stream';
-import { main } from '../../src/cli/main.js';
-import type { CliIo } from '../../src/cli/io.js';
+import { main } from '../src/cli/main.js';
+import type { CliIo } from '../src/cli/io.js';
 
 export interface CliRun {
   code: number;

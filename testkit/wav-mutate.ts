@@ -4,7 +4,7 @@
  * truncation, inserted chunks, NaN/Inf floats, stray bytes).
  */
 import fc from 'fast-check';
-import { encodeWav, type WavEncoding } from '../../src/io/wav-write.js';
+import { encodeWav, type WavEncoding } from '../src/io/wav-write.js';
 
 /** Values that break naive readers: zero, one, odd, sign bit, all ones, just past common limits. */
 const SPECIAL_U32 = [0, 1, 2, 3, 7, 15, 16, 17, 18, 40, 0x7fff_f000, 0x7fff_ffff, 0x8000_0000, 0xffff_fff0, 0xffff_ffff, 7999, 8000, 192_000, 192_001];
