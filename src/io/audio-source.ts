@@ -142,7 +142,7 @@ export async function openAudio(pathOrDash: string, options: OpenAudioOptions = 
     name,
     sampleRate: format.sampleRate,
     channelCount: format.channelCount,
-    encoding: parser instanceof WavStreamParser ? parser.format!.encoding : (parser.format.encoding),
+    encoding: format.encoding,
     durationMs,
     streaming: true,
     warnings,

@@ -82,6 +82,21 @@ describe('mixer', () => {
   });
 });
 
+/** Marks for patterns sent one after another at a unit of `u` ms with standard spacing (ITU-R M.1677-1 §2). */
+function patternSender(u: number): { marks: Interval[]; send: (pattern: string) => void } {
+  const marks: Interval[] = [];
+  let t = 0;
+  const send = (pattern: string): void => {
+    for (const el of pattern) {
+      const len = el === '-' ? 3 * u : u;
+      marks.push([t, t + len]);
+      t += len + u;
+    }
+    t += 2 * u;
+  };
+  return { marks, send };
+}
+
 describe('decoder', () => {
   const plan = planKeying('Q7ZKT DE Q3ABC TEST', { wpm: 20 });
 
@@ -173,17 +188,7 @@ describe('decoder', () => {
   });
 
   it('prints an unknown pattern as * and keeps its dots and dashes', () => {
-    const u = 60;
-    const marks: Interval[] = [];
-    let t = 0;
-    const send = (pattern: string): void => {
-      for (const el of pattern) {
-        const len = el === '-' ? 3 * u : u;
-        marks.push([t, t + len]);
-        t += len + u;
-      }
-      t += 2 * u;
-    };
+    const { marks, send } = patternSender(60);
     for (const p of ['--.-', '.....', '.-.-..', '-..', '.']) send(p); // Q 5 (unknown) D E
     const r = decodeSamples(keyed(marks), RATE);
     expect(r.text).toBe('Q5*DE');
@@ -192,17 +197,7 @@ describe('decoder', () => {
   });
 
   it('keeps an unknown run longer than six elements as one *, and 8 dots as <HH>', () => {
-    const u = 60;
-    const marks: Interval[] = [];
-    let t = 0;
-    const send = (pattern: string): void => {
-      for (const el of pattern) {
-        const len = el === '-' ? 3 * u : u;
-        marks.push([t, t + len]);
-        t += len + u;
-      }
-      t += 2 * u;
-    };
+    const { marks, send } = patternSender(60);
     // Q, an unknown run of 7, E, the error signal (8 dots, a prosign in ITU-R M.1677-1), an unknown
     // run of 9 dots, and T.
     for (const p of ['--.-', '-.-.-.-', '.', '........', '.........', '-']) send(p);

@@ -103,7 +103,6 @@ empty and a warning says no keyed signal was found.`,
       });
       bar.done();
       live?.end();
-      const index = channel;
       for (const w of audio.warnings) ctx.warn(w);
       if (channelNote) ctx.warn(channelNote);
       for (const w of result.warnings) ctx.warn(w);
@@ -113,7 +112,7 @@ empty and a warning says no keyed signal was found.`,
             decodeToJson(result, {
               sampleRate: audio.sampleRate,
               encoding: audio.encoding,
-              channel: index + 1,
+              channel: channel + 1,
               channels: audio.channelCount,
             }),
           ),
