@@ -55,6 +55,13 @@ export function markScore(x: number, q: number): number {
   return Math.max(full, half, quarter);
 }
 
+/** ln d for the whole durations a table can hold (d ≤ historySlots / 4 ≤ 2^14). */
+const LN_INT: Float64Array = (() => {
+  const t = new Float64Array((1 << 14) + 1);
+  for (let d = 1; d < t.length; d++) t[d] = Math.log(d);
+  return t;
+})();
+
 interface DurationTable {
   min: number;
   max: number;
@@ -65,10 +72,16 @@ function durationTable(mean: number, spread: number, cap: number): DurationTable
   const min = Math.max(1, Math.floor(mean * Math.exp(-2.5 * spread)));
   const max = Math.max(min, Math.min(cap, Math.ceil(mean * Math.exp(2.5 * spread))));
   const logP = new Float64Array(max + 1).fill(NEG);
+  const k = 1 / (2 * spread * spread);
+  const lnMean = Math.log(mean);
   let total = 0;
-  for (let d = min; d <= max; d++) total += Math.exp(-((Math.log(d / mean)) ** 2) / (2 * spread * spread));
+  for (let d = min; d <= max; d++) {
+    const u = LN_INT[d]! - lnMean;
+    logP[d] = -u * u * k;
+    total += Math.exp(logP[d]!);
+  }
   const norm = Math.log(total);
-  for (let d = min; d <= max; d++) logP[d] = -((Math.log(d / mean)) ** 2) / (2 * spread * spread) - norm;
+  for (let d = min; d <= max; d++) logP[d] = logP[d]! - norm;
   return { min, max, logP };
 }
 
@@ -101,6 +114,13 @@ export class SequenceDecoder {
   private readonly bestCharNode: Int16Array;
   private readonly charPrior: Float64Array;
   private readonly llr: Float64Array;
+  /** Fade-tolerant mark scores of the current slot, llr's twin for marks longer than a dot. */
+  private readonly llrWeak: Float64Array;
+  /** Per slot e: the fade-tolerant score of the block (e − blockSizeAt[e], e] (see markScores). */
+  private readonly blockAt: Float64Array;
+  private readonly blockSizeAt: Int32Array;
+  /** States given a score at the current slot, in the order they were written. */
+  private readonly written: Int16Array;
   /** Per slot: the best element-gap state a long dot / long dash may follow, and its score. */
   private readonly longSrcScore: [Float64Array, Float64Array];
   private readonly longSrcState: [Int16Array, Int16Array];
@@ -118,9 +138,11 @@ export class SequenceDecoder {
   /** Last slot at which each state was within the beam. */
   private readonly lastAlive: Int32Array;
 
-  /** @param historySlots - Ring length [slots], a power of two ≥ 256. */
+  /** @param historySlots - Ring length [slots], a power of two from 256 to 65536. */
   constructor(trie: CodeTrie, model: DurationModel, historySlots = 2048) {
-    if (historySlots < 256 || (historySlots & (historySlots - 1)) !== 0) throw new RangeError(`historySlots must be a power of two ≥ 256 (got ${historySlots})`);
+    if (historySlots < 256 || historySlots > 65536 || (historySlots & (historySlots - 1)) !== 0) {
+      throw new RangeError(`historySlots must be a power of two from 256 to 65536 (got ${historySlots})`);
+    }
     this.trie = trie;
     this.historySlots = historySlots;
     this.mask = historySlots - 1;
@@ -140,6 +162,10 @@ export class SequenceDecoder {
     this.charPrior = new Float64Array(this.n);
     for (let i = 1; i < this.n; i++) this.charPrior[i] = trie.text[i] !== null ? CHAR_PRIOR : CHAR_PRIOR + UNKNOWN_PENALTY;
     this.llr = new Float64Array(H);
+    this.llrWeak = new Float64Array(H);
+    this.blockAt = new Float64Array(H);
+    this.blockSizeAt = new Int32Array(H);
+    this.written = new Int16Array(this.nStates);
     this.longSrcScore = [new Float64Array(H).fill(NEG), new Float64Array(H).fill(NEG)];
     this.longSrcState = [new Int16Array(H).fill(-1), new Int16Array(H).fill(-1)];
     this.longMask = new Uint8Array(this.n);
@@ -198,7 +224,9 @@ export class SequenceDecoder {
     const llr = this.llr;
     const rowBase = this.rowBase;
     for (let d = 1; d <= maxD; d++) rowBase[d] = ((t - d) & M) * S;
-    for (let d = 1; d <= maxMark; d++) llr[d] = this.markLlr(t - d, t);
+    this.markScores(t, maxMark);
+    const written = this.written;
+    let nWritten = 0;
     const { parent, symbol } = this.trie;
     const n = this.n;
     const bpDur = this.bpDur;
@@ -235,6 +263,7 @@ export class SequenceDecoder {
         score[base + node] = best;
         bpDur[base + node] = bestD;
         bpPrev[base + node] = bestPrev;
+        written[nWritten++] = node;
       }
     }
     // Long nodes (unknown runs past the tree's depth): from the best element gap that may lead to them.
@@ -257,6 +286,7 @@ export class SequenceDecoder {
         score[base + node] = best;
         bpDur[base + node] = bestD;
         bpPrev[base + node] = bestPrev;
+        written[nWritten++] = node;
       }
     }
     // Element gaps: after a mark, inside a character.
@@ -277,11 +307,12 @@ export class SequenceDecoder {
           score[base + n + node] = best + GAP_PRIOR.elementGap;
           bpDur[base + n + node] = bestD;
           bpPrev[base + n + node] = node;
+          written[nWritten++] = n + node;
         }
       }
     }
     // Letter and word gaps: close the best character that ended where the gap starts.
-    const closeWith = (table: DurationTable, prior: number, state: number): void => {
+    const closeWith = (table: DurationTable, prior: number, state: number): number => {
       const hi = Math.min(table.max, t);
       let best = NEG;
       let bestD = 0;
@@ -295,10 +326,12 @@ export class SequenceDecoder {
         score[base + state] = best + prior;
         bpDur[base + state] = bestD;
         bpPrev[base + state] = this.bestCharNode[(t - bestD) & M]!;
+        return 1;
       }
+      return 0;
     };
-    closeWith(lgap, GAP_PRIOR.letterGap, this.stR);
-    closeWith(wgap, GAP_PRIOR.wordGap, this.stS);
+    if (closeWith(lgap, GAP_PRIOR.letterGap, this.stR)) written[nWritten++] = this.stR;
+    const wordGapWritten = closeWith(wgap, GAP_PRIOR.wordGap, this.stS);
     // Idle: a word gap may go on for any length.
     const idle = score[pi * S + this.stS]!;
     if (idle > score[base + this.stS]!) {
@@ -306,15 +339,21 @@ export class SequenceDecoder {
       bpDur[base + this.stS] = 1;
       bpPrev[base + this.stS] = this.stS;
     }
-    // Beam: drop what is far below the best path; remember what is still alive.
+    if (wordGapWritten || score[base + this.stS]! > NEG) written[nWritten++] = this.stS;
+    // Beam: drop what is far below the best path; remember what is still alive. Only the states
+    // written at this slot can hold a score (the row was cleared above).
     let top = NEG;
-    for (let s = 0; s < S; s++) if (score[base + s]! > top) top = score[base + s]!;
+    for (let w = 0; w < nWritten; w++) {
+      const v = score[base + written[w]!]!;
+      if (v > top) top = v;
+    }
     const floor = top - BEAM;
     // ... and, on the way, where a long dot / long dash could start after this slot: the best live
     // element gap among the nodes that lead to them.
     const longMask = this.longMask;
     let dotSrc = NEG, dotState = -1, dashSrc = NEG, dashState = -1;
-    for (let s = 0; s < S; s++) {
+    for (let w = 0; w < nWritten; w++) {
+      const s = written[w]!;
       const v = score[base + s]!;
       if (v <= NEG) continue;
       if (v < floor) { score[base + s] = NEG; continue; }
@@ -329,10 +368,13 @@ export class SequenceDecoder {
     this.longSrcState[0][ti] = dotState;
     this.longSrcScore[1][ti] = dashSrc;
     this.longSrcState[1][ti] = dashState;
-    // Best character ending at this slot, for the gaps that will close it.
+    // Best character ending at this slot, for the gaps that will close it (marks were written
+    // first, in node order: the same node wins a tie as in a scan of all nodes).
     let bc = NEG;
     let bcNode = -1;
-    for (let node = 1; node < n; node++) {
+    for (let w = 0; w < nWritten; w++) {
+      const node = written[w]!;
+      if (node >= n) break;
       const v = score[base + node]! + this.charPrior[node]!;
       if (v > bc) { bc = v; bcNode = node; }
     }
@@ -360,25 +402,75 @@ export class SequenceDecoder {
     return top;
   }
 
-  /** Log-likelihood ratio (mark against noise) of slots (a, b], both within the history. */
+  /**
+   * Log-likelihood ratio (mark against noise) of slots (a, b], both within the history.
+   * Phase is held over blocks of two units from the start: (a, a + block], (a + block, a + 2·block],
+   * …, the last one shorter: dots whole, dashes in two coherent pieces summed as energy, so a tone a
+   * few hertz off (drift the loop has not caught yet) costs little. Only marks of a plausible length
+   * (at least about a dot) may be weaker than the tracked level: a click is short.
+   */
   markLlr(a: number, b: number): number {
-    // Phase is held over blocks of two units: dots whole, dashes in two coherent pieces summed
-    // as energy, so a tone a few hertz off (drift the loop has not caught yet) costs little.
+    const block = this.blockSlots;
+    const weak = b - a >= this.minWeakSlots;
+    let sum = 0;
+    for (let s = a; s < b; s += block) sum += this.spanScore(s, Math.min(b, s + block), weak);
+    return sum;
+  }
+
+  /** Score of a tone over slots (a, b] with one phase: fade-tolerant (markScore) or at the tracked level. */
+  private spanScore(a: number, b: number, weak: boolean): number {
+    const si = a & this.mask;
+    const ei = b & this.mask;
+    const dr = this.yRe[ei]! - this.yRe[si]!;
+    const di = this.yIm[ei]! - this.yIm[si]!;
+    const x = 2 * Math.sqrt(dr * dr + di * di);
+    const q = this.yQ[ei]! - this.yQ[si]!;
+    return weak ? markScore(x, q) : lnI0Fast(x) - q;
+  }
+
+  /**
+   * Fills llr[d] = markLlr(t − d, t) for d = 1…maxMark in O(block + maxMark) rather than
+   * O(maxMark²/block): a mark longer than a block is its first, whole block plus the mark over the
+   * rest, which ends at t too and was scored just before (w[d − block]); each whole block's score
+   * is kept by its last slot (blockAt), as it does not change once the slot is past.
+   */
+  private markScores(t: number, maxMark: number): void {
     const M = this.mask;
     const block = this.blockSlots;
-    let sum = 0;
-    for (let s = a; s < b; s += block) {
-      const e = Math.min(b, s + block);
-      const si = s & M;
-      const ei = e & M;
-      const dr = this.yRe[ei]! - this.yRe[si]!;
-      const di = this.yIm[ei]! - this.yIm[si]!;
+    const minWeak = this.minWeakSlots;
+    const llr = this.llr;
+    const w = this.llrWeak;
+    const ti = t & M;
+    const yr = this.yRe[ti]!;
+    const yi = this.yIm[ti]!;
+    const yq = this.yQ[ti]!;
+    const direct = Math.min(maxMark, block);
+    for (let d = 1; d <= direct; d++) {
+      const si = (t - d) & M;
+      const dr = yr - this.yRe[si]!;
+      const di = yi - this.yIm[si]!;
       const x = 2 * Math.sqrt(dr * dr + di * di);
-      const q = this.yQ[ei]! - this.yQ[si]!;
-      // Only marks of a plausible length may be weaker than the tracked level: a click is short.
-      sum += b - a >= this.minWeakSlots ? markScore(x, q) : lnI0Fast(x) - q;
+      const q = yq - this.yQ[si]!;
+      const full = lnI0Fast(x) - q;
+      const half = lnI0Fast(0.5 * x) - 0.25 * q + WEAKER_PRIOR;
+      const quarter = lnI0Fast(0.25 * x) - q / 16 + WEAKER_PRIOR_12DB;
+      const fw = full > half ? (full > quarter ? full : quarter) : half > quarter ? half : quarter;
+      w[d] = fw;
+      llr[d] = d >= minWeak ? fw : full;
     }
-    return sum;
+    // The whole block ending now, for the marks that will start with it.
+    if (t >= block) {
+      this.blockAt[ti] = w[block]!;
+      this.blockSizeAt[ti] = block;
+    }
+    for (let d = block + 1; d <= maxMark; d++) {
+      const e = t - d + block;
+      const ei = e & M;
+      const first = this.blockSizeAt[ei] === block ? this.blockAt[ei]! : this.spanScore(t - d, e, true);
+      const v = first + w[d - block]!;
+      w[d] = v;
+      llr[d] = v;
+    }
   }
 
   /**
