@@ -52,6 +52,11 @@ function s16Lookup(): Float32Array {
   }
   return s16Table;
 }
+/** The common case, mono 16-bit, in a loop of its own (a small function the compiler optimises well). */
+function s16Mono(u: Uint16Array, o: Float32Array, table: Float32Array): void {
+  const len = o.length;
+  for (let i = 0; i < len; i++) o[i] = table[u[i]!]!;
+}
 const U8_TABLE = (() => {
   const t = new Float32Array(256);
   for (let b = 0; b < 256; b++) {
@@ -130,9 +135,12 @@ export class PcmDeinterleaver {
         const table = s16Lookup();
         if (LITTLE_ENDIAN_HOST) {
           const u = new Uint16Array(buf, off, n);
-          for (let c = 0; c < nch; c++) {
-            const o = out[c]!;
-            for (let i = 0, k = c; i < frames; i++, k += nch) o[i] = table[u[k]!]!;
+          if (nch === 1) s16Mono(u, out[0]!, table);
+          else {
+            for (let c = 0; c < nch; c++) {
+              const o = out[c]!;
+              for (let i = 0, k = c; i < frames; i++, k += nch) o[i] = table[u[k]!]!;
+            }
           }
         } else {
           for (let c = 0; c < nch; c++) {

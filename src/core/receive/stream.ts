@@ -118,6 +118,8 @@ export class StreamDecoder {
   /** Ring of frame amplitudes (as long as the decoder's history), for refining mark edges. */
   private frameAmp = new Float32Array(0);
   private frameCount = 0;
+  /** frameCount modulo the ring's length: where the next frame goes. */
+  private frameSlot = 0;
   private lastMarkEndMs = 0;
   private afterElementGap = false;
   private prevOn = false;
@@ -360,6 +362,7 @@ export class StreamDecoder {
     this.zIm = new Float64Array(this.decoder.historySlots);
     this.frameAmp = new Float32Array(this.decoder.historySlots * this.framesPerSlot);
     this.frameCount = 0;
+    this.frameSlot = 0;
   }
 
   // ---- streaming chain ----------------------------------------------------------------------
@@ -394,7 +397,9 @@ export class StreamDecoder {
     const g2 = gr * gr + gi * gi;
     const cr = (re - (gr * re + gi * im)) / (1 - g2);
     const ci = (im - (gi * re - gr * im)) / (1 - g2);
-    this.frameAmp[this.frameCount++ % this.frameAmp.length] = g2 < 0.25 ? Math.hypot(cr, ci) : Math.hypot(re, im);
+    this.frameAmp[this.frameSlot] = g2 < 0.25 ? Math.sqrt(cr * cr + ci * ci) : Math.sqrt(re * re + im * im);
+    this.frameCount++;
+    if (++this.frameSlot === this.frameAmp.length) this.frameSlot = 0;
     this.slotRe += re;
     this.slotIm += im;
     if (++this.slotFill === this.framesPerSlot) {
