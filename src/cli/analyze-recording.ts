@@ -205,8 +205,8 @@ export function followText(write: (s: string) => void, lineWidth = 72): { write:
 }
 
 /**
- * Analyses one recording: decode, timing and shape. Long files stream through the receiver in
- * chunks; the shape analysis sees the first `shapeSeconds` of the chosen channel.
+ * Analyses one recording: decode, timing and shape. Files stream through the receiver in blocks
+ * (any size, bounded memory); the shape analysis sees the first `shapeSeconds` of the chosen channel.
  * @param path - WAV file (or raw PCM with `raw`/`rate`), or `-` with `stdin`.
  * @returns A row; a file that cannot be read gives `verdict: 'error'` and the one-line reason.
  * @example (await analyzeRecording('recordings/beacon-after-fix.wav')).text //=> 'VVV Q7ZKT/B …'
@@ -224,7 +224,9 @@ export async function analyzeRecording(path: string, options: AnalyzeOptions = {
 }
 
 async function analyzeInto(row: BatchRow, path: string, options: AnalyzeOptions): Promise<void> {
-  const audio = await openAudio(path, options);
+  // Every file streams (block by block, whatever its size) unless told otherwise: the analysis goes
+  // through the audio once, so reading it whole would only cost memory and a second pass to convert.
+  const audio = await openAudio(path, { ...options, streamAboveBytes: options.streamAboveBytes ?? 0 });
   const keepSeconds = options.skipShape ? 0 : (options.shapeSeconds ?? 60);
   const { result, excerpt, channelNote } = await decodeAudioSource(audio, { toneHz: options.toneHz, channel: options.channel, keepSeconds, onProgress: options.onProgress });
   const sampleRate = audio.sampleRate;

@@ -3,6 +3,7 @@
  * rise time) measured on a wide keying envelope, one mark at a time.
  */
 import { checkRange } from '../errors.js';
+import { sortedCopy } from './timing-stats.js';
 
 /** One measured edge. Times on the recording's clock [ms]. */
 export interface EdgeMeasurement {
@@ -112,16 +113,11 @@ function stdOf(env: Float32Array, i0: number, i1: number): number {
   return Math.sqrt(Math.max(0, s2 / n - m * m));
 }
 
-/** Sorted copy of a numeric list. @example sortedCopy([3, 1, 2]) //=> [1, 2, 3] */
-export function sortedCopy(values: readonly number[]): number[] {
-  return [...values].sort((a, b) => a - b);
-}
-
 /**
  * Median, 10th and 90th percentile of a list (linear interpolation; nulls when empty).
  * @example spreadOf([1, 2, 3, 4, 5]) //=> { median: 3, p10: 1.4, p90: 4.6 }
  */
-export function spreadOf(values: readonly number[]): { median: number | null; p10: number | null; p90: number | null } {
+export function spreadOf(values: ArrayLike<number>): { median: number | null; p10: number | null; p90: number | null } {
   if (values.length === 0) return { median: null, p10: null, p90: null };
   const s = sortedCopy(values);
   return { median: percentile(s, 0.5), p10: percentile(s, 0.1), p90: percentile(s, 0.9) };
@@ -245,7 +241,6 @@ export function measureEdges(env: Float32Array, sampleRate: number, options: Edg
   const N = env.length;
   const keepFrom = (options.keepFromMs ?? -Infinity) / msPerSample;
   const keepTo = (options.keepToMs ?? Infinity) / msPerSample;
-  const inKeep = (i: number): boolean => i >= keepFrom && i < keepTo;
   const counts: EdgeCounts = { bumps: 0, kept: 0, tooShort: 0, tooNoisy: 0, endsInMark: false, noKeyDown: false };
   // Levels from a decimated sorted copy (bounded cost on long recordings).
   const stride = Math.max(1, Math.floor(N / 200_000));
@@ -281,13 +276,17 @@ export function measureEdges(env: Float32Array, sampleRate: number, options: Edg
       runs.push([start, j]);
     }
   }
-  counts.endsInMark = down && inKeep(start);
+  counts.endsInMark = down && start >= keepFrom && start < keepTo;
   const minLen = minMarkMs / msPerSample;
-  const kept = runs.filter(([a, b]) => b - a >= minLen);
-  counts.bumps = runs.filter(([a, b]) => b - a < minLen && inKeep(a)).length;
+  const kept: Array<[number, number]> = [];
+  for (const run of runs) {
+    if (run[1] - run[0] >= minLen) kept.push(run);
+    else if (run[0] >= keepFrom && run[0] < keepTo) counts.bumps++;
+  }
 
-  kept.forEach(([a, b], m) => {
-    if (!inKeep(a)) return;
+  for (let m = 0; m < kept.length; m++) {
+    const [a, b] = kept[m]!;
+    if (!(a >= keepFrom && a < keepTo)) continue;
     const prevEnd = m > 0 ? kept[m - 1]![1] : 0;
     const nextStart = m + 1 < kept.length ? kept[m + 1]![0] : N;
     const D = b - a;
@@ -323,7 +322,7 @@ export function measureEdges(env: Float32Array, sampleRate: number, options: Edg
     if (!(span > 0) || plateauNoise > 0.05) {
       mark.problem = 'too noisy';
       counts.tooNoisy++;
-      return;
+      continue;
     }
     const riseEdge = measureEdge(env, a, baseBefore, settled, true, Math.max(0, prevEnd + Math.floor(gapBefore / 2)), a + Math.floor(D / 2), msPerSample);
     const fallEdge = measureEdge(env, b - 1, baseAfter, settled, false, b - Math.ceil(D / 2), Math.min(N - 1, b + Math.floor(gapAfter / 2)), msPerSample);
@@ -336,11 +335,11 @@ export function measureEdges(env: Float32Array, sampleRate: number, options: Edg
     if (!settledOk) {
       mark.problem = 'too short to settle';
       counts.tooShort++;
-      return;
+      continue;
     }
     mark.rise = riseEdge;
     mark.fall = fallEdge;
-  });
+  }
   counts.kept = result.marks.length;
   warnings.push(...edgeWarnings(counts, minMarkMs));
   return result;

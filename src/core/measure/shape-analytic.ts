@@ -90,34 +90,50 @@ export function complexBaseband(samples: Float32Array, sampleRate: number, optio
   const blocks = Math.ceil(N0 / step);
   let done = 0;
   for (let s = 0; s < N0; s += step) {
-    const start = s - guard;
-    for (let n = 0; n < N; n++) {
-      const i = start + n;
-      frame[n] = i >= 0 && i < N0 ? samples[i]! : 0;
-    }
-    fft.realTransform(spec, frame);
-    fft.completeSpectrum(spec);
-    for (let k = 0; k < N; k++) {
-      const g = gain[k]!;
-      spec[2 * k] = spec[2 * k]! * g;
-      spec[2 * k + 1] = spec[2 * k + 1]! * g;
-    }
-    fft.inverseTransform(time, spec);
-    const end = Math.min(N0, s + step);
-    for (let i = s; i < end; i++) {
-      const m = i - start;
-      const zr = time[2 * m]!;
-      const zi = time[2 * m + 1]!;
-      const c = Math.cos(w0 * i);
-      const sn = Math.sin(w0 * i);
-      // z · e^{−jω0 i}
-      re[i] = zr * c + zi * sn;
-      im[i] = zi * c - zr * sn;
-    }
+    filterBlock(samples, s, Math.min(N0, s + step), s - guard, { fft, frame, spec, time, gain, w0, re, im });
     done++;
     options.onProgress?.(done / blocks);
   }
   return result;
+}
+
+/**
+ * One block of complexBaseband: FFT of samples[start…start+N) (zero outside), the band-pass gain,
+ * inverse FFT, and the samples s…end mixed down into re/im. A function of its own, called once
+ * per block, so that its compiled code is kept from one recording to the next.
+ */
+function filterBlock(
+  samples: Float32Array,
+  s: number,
+  end: number,
+  start: number,
+  w: { fft: FFT; frame: Float64Array; spec: number[]; time: number[]; gain: Float64Array; w0: number; re: Float32Array; im: Float32Array },
+): void {
+  const { fft, frame, spec, time, gain, w0, re, im } = w;
+  const N = frame.length;
+  const N0 = samples.length;
+  for (let n = 0; n < N; n++) {
+    const i = start + n;
+    frame[n] = i >= 0 && i < N0 ? samples[i]! : 0;
+  }
+  fft.realTransform(spec, frame);
+  fft.completeSpectrum(spec);
+  for (let k = 0; k < N; k++) {
+    const g = gain[k]!;
+    spec[2 * k] = spec[2 * k]! * g;
+    spec[2 * k + 1] = spec[2 * k + 1]! * g;
+  }
+  fft.inverseTransform(time, spec);
+  for (let i = s; i < end; i++) {
+    const m = i - start;
+    const zr = time[2 * m]!;
+    const zi = time[2 * m + 1]!;
+    const c = Math.cos(w0 * i);
+    const sn = Math.sin(w0 * i);
+    // z · e^{−jω0 i}
+    re[i] = zr * c + zi * sn;
+    im[i] = zi * c - zr * sn;
+  }
 }
 
 /**

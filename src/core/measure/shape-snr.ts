@@ -76,33 +76,46 @@ export function addSnrSums(
   const N = bb.re.length;
   const lo = Math.max(at.keepFromMs, 10);
   const hi = Math.min(at.keepToMs, at.recordMs - 10);
-  const power = (a: number, b: number): [number, number] => {
-    const i0 = Math.max(0, Math.round((Math.max(a, lo) - at.startMs) * perMs));
-    const i1 = Math.min(N, Math.round((Math.min(b, hi) - at.startMs) * perMs));
-    let s = 0;
-    for (let i = i0; i < i1; i++) s += bb.re[i]! * bb.re[i]! + bb.im[i]! * bb.im[i]!;
-    return [s, Math.max(0, i1 - i0)];
-  };
-  const middle = (a: number, b: number): [number, number] | null => (b - a < 4 ? null : [a + 0.25 * (b - a), b - 0.25 * (b - a)]);
-  const add = (span: [number, number] | null, on: boolean): void => {
-    if (span === null || span[1] <= lo || span[0] >= hi) return;
-    const [s, n] = power(span[0], span[1]);
-    if (on) {
-      sums.onSum += s;
-      sums.onN += n;
-    } else {
-      sums.offSum += s;
-      sums.offN += n;
-    }
-  };
+  const span = { lo, hi, startMs: at.startMs, perMs };
   let prevEnd = 0;
   for (const [a, b] of marks) {
-    if (a > prevEnd) add(middle(prevEnd, a), false);
-    add(middle(a, b), true);
+    if (a > prevEnd) addMiddle(sums, bb, prevEnd, a, false, span);
+    addMiddle(sums, bb, a, b, true, span);
     prevEnd = Math.max(prevEnd, b);
   }
-  add(middle(prevEnd, at.recordMs), false);
+  addMiddle(sums, bb, prevEnd, at.recordMs, false, span);
   return sums;
+}
+
+/**
+ * Adds the power of the middle half of (a, b) [ms] (nothing for spans under 4 ms), clipped to
+ * [lo, hi), to the mark or the gap sums. A module-level function rather than a callback made at each
+ * call, so that its compiled code is kept from one recording to the next.
+ */
+function addMiddle(
+  sums: SnrSums,
+  bb: Pick<Baseband, 're' | 'im'>,
+  a: number,
+  b: number,
+  on: boolean,
+  span: { lo: number; hi: number; startMs: number; perMs: number },
+): void {
+  if (b - a < 4) return;
+  const m0 = a + 0.25 * (b - a);
+  const m1 = b - 0.25 * (b - a);
+  if (m1 <= span.lo || m0 >= span.hi) return;
+  const i0 = Math.max(0, Math.round((Math.max(m0, span.lo) - span.startMs) * span.perMs));
+  const i1 = Math.min(bb.re.length, Math.round((Math.min(m1, span.hi) - span.startMs) * span.perMs));
+  let s = 0;
+  for (let i = i0; i < i1; i++) s += bb.re[i]! * bb.re[i]! + bb.im[i]! * bb.im[i]!;
+  const n = Math.max(0, i1 - i0);
+  if (on) {
+    sums.onSum += s;
+    sums.onN += n;
+  } else {
+    sums.offSum += s;
+    sums.offN += n;
+  }
 }
 
 /**

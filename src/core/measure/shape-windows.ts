@@ -120,12 +120,9 @@ export function envelopePass(samples: Float32Array, sampleRate: number, options:
   // One set of working arrays, the size of the longest stretch, reused for every stretch.
   const longest = Math.max(...stretches.map((st, k) => (k + 1 === stretches.length ? samples.length : Math.round(st.toMs * perMs)) - Math.round(st.fromMs * perMs)));
   const work = { re: new Float32Array(longest), im: new Float32Array(longest), env: new Float32Array(longest) };
-  const mean = (env: Float32Array, i0: number, i1: number): number => {
-    let s = 0;
-    for (let i = Math.max(0, i0); i < Math.min(env.length, i1); i++) s += env[i]!;
-    return s / Math.max(1, i1 - i0);
-  };
-  stretches.forEach((st, k) => {
+  // A loop, not a callback: see stretchMean.
+  for (let k = 0; k < stretches.length; k++) {
+    const st = stretches[k]!;
     const i0 = Math.round(st.fromMs * perMs);
     const i1 = k + 1 === stretches.length ? samples.length : Math.round(st.toMs * perMs);
     const startMs = i0 / perMs;
@@ -160,10 +157,10 @@ export function envelopePass(samples: Float32Array, sampleRate: number, options:
       }
     }
     addSnrSums(snr, bb, sampleRate, options.timingMarks, { startMs, keepFromMs: st.keepFromMs, keepToMs: st.keepToMs, recordMs });
-    for (const v of env) if (v > ends.peak) ends.peak = v;
-    if (k === 0) ends.startMean = mean(env, 2 * n5, 3 * n5);
-    if (k + 1 === stretches.length) ends.endMean = mean(env, env.length - 3 * n5, env.length - 2 * n5);
-  });
+    ends.peak = Math.max(ends.peak, peakOf(env));
+    if (k === 0) ends.startMean = stretchMean(env, 2 * n5, 3 * n5);
+    if (k + 1 === stretches.length) ends.endMean = stretchMean(env, env.length - 3 * n5, env.length - 2 * n5);
+  }
   counts.noKeyDown = noKeyDownAll;
   const f = first ?? measureEdges(new Float32Array(0), sampleRate);
   return {
@@ -176,4 +173,22 @@ export function envelopePass(samples: Float32Array, sampleRate: number, options:
     ends,
     stretches: stretches.length,
   };
+}
+
+// Sample loops live in module-level functions: a callback made inside the per-recording function
+// would be a new function at every call, whose compiled code the engine does not keep from one
+// recording to the next (a batch would compile it again for every file).
+
+/** Mean of env[i0…i1) (clipped to the array), over the nominal length i1 − i0. */
+function stretchMean(env: Float32Array, i0: number, i1: number): number {
+  let s = 0;
+  for (let i = Math.max(0, i0); i < Math.min(env.length, i1); i++) s += env[i]!;
+  return s / Math.max(1, i1 - i0);
+}
+
+/** Largest value of env (−∞ for an empty array). */
+function peakOf(env: Float32Array): number {
+  let peak = -Infinity;
+  for (let i = 0; i < env.length; i++) if (env[i]! > peak) peak = env[i]!;
+  return peak;
 }

@@ -12,7 +12,8 @@ import { planKeying } from '../timing/plan.js';
 import { modulationRateBaud, wpmFromUnitMs } from '../timing/speed.js';
 import { emissionDesignator, necessaryBandwidthHz, occupiedBandwidth, powerDb, xDbBandwidth, type XdbBandwidth } from './bandwidth.js';
 import { chirpFromTracks, type ChirpTrack } from './chirp.js';
-import { classifyEdge, edgeWarnings, measureEdges, sortedCopy, spreadOf, tracesFromSnippets, type EdgeAnalysis, type EdgeKindEstimate, type EdgeSnippet, type EdgeTraces } from './edges.js';
+import { classifyEdge, edgeWarnings, measureEdges, spreadOf, tracesFromSnippets, type EdgeAnalysis, type EdgeKindEstimate, type EdgeSnippet, type EdgeTraces, type MarkShape } from './edges.js';
+import { sortedCopy } from './timing-stats.js';
 import { checkMask, DEFAULT_MASK, validateMask, type MaskPoint, type MaskVerdict, type SpectralMask } from './mask.js';
 import { complexBaseband, magnitude } from './shape-analytic.js';
 import { densityAt, noiseDensityFromGaps } from './shape-noise.js';
@@ -213,7 +214,8 @@ function spectralFigures(
   }
   const occupied = occupiedBandwidth({ offsetHz: offsets, power: clean, binHz });
   const uncorrected = occupiedBandwidth({ offsetHz: offsets, power, binHz });
-    const noiseDbc = floor.map((nb) => powerDb(nb / (ref || 1)));
+    const noiseDbc = new Array<number>(floor.length);
+  for (let j = 0; j < floor.length; j++) noiseDbc[j] = powerDb(floor[j]! / (ref || 1));
   const medianNoiseDbc = noiseApplied ? sortedCopy(noiseDbc)[Math.floor(noiseDbc.length / 2)]! : -Infinity;
   const xdbAt = (x: number): XdbBandwidth => {
     const r = xDbBandwidth(offsets, dbc, x);
@@ -221,14 +223,10 @@ function spectralFigures(
     return -x < medianNoiseDbc + 3 ? { lowerHz: null, upperHz: null, widthHz: null, basis: 'below the noise floor' } : r;
   };
   const xdb = { '20': xdbAt(20), '40': xdbAt(40), '60': xdbAt(60) };
-  const clicks: ClickLevel[] = CLICK_OFFSETS_HZ.map((offsetHz) => {
-    const levelNear = (f: number): number | null => {
-      let best: number | null = null;
-      for (let j = 0; j < n; j++) if (Math.abs(offsets[j]! - f) <= spectrum.rbwHz) best = best === null ? dbc[j]! : Math.max(best, dbc[j]!);
-      return best === null ? null : round(best, 1);
-    };
-    return { offsetHz, lowerDbc: levelNear(-offsetHz), upperDbc: levelNear(offsetHz) };
-  });
+  const clicks: ClickLevel[] = [];
+  for (const offsetHz of CLICK_OFFSETS_HZ) {
+    clicks.push({ offsetHz, lowerDbc: levelNear(offsets, dbc, -offsetHz, spectrum.rbwHz), upperDbc: levelNear(offsets, dbc, offsetHz, spectrum.rbwHz) });
+  }
   const verdict = checkMask(offsets, dbc, mask, noiseApplied ? noiseDbc : undefined);
   return { spectrum, offsets, dbc, referencePower: ref, occupied, uncorrected, noiseApplied, noiseFloorDbc: noiseApplied ? medianNoiseDbc : null, xdb, clicks, verdict };
 }
@@ -303,15 +301,16 @@ function gateEdges(pass: EnvelopePass, snr: ShapeSnr | null, minEdgeDb: number):
   if (snrDb === null) return none;
   const pOff = snr!.noisePower ?? 0;
   const bandHz = envelopeNoiseBandwidthHz(pass.baseband);
-  const markSnrDb = (settled: number): number =>
-    pOff > 0 ? 10 * Math.log10((Math.max(settled * settled - pOff, 1e-30) / pOff) * (bandHz / SNR_BANDWIDTH_HZ)) : Infinity;
   let weak = 0;
-  const marks = pass.edges.marks.map((m) => {
-    const db = markSnrDb(m.settledLevel);
-    if (db >= minEdgeDb) return m;
-    weak++;
-    return { ...m, rise: null, fall: null, problem: `too noisy: its own SNR ${db.toFixed(1)} dB is below the ${minEdgeDb} dB needed to measure edges` };
-  });
+  const marks: MarkShape[] = [];
+  for (const m of pass.edges.marks) {
+    const db = pOff > 0 ? 10 * Math.log10((Math.max(m.settledLevel * m.settledLevel - pOff, 1e-30) / pOff) * (bandHz / SNR_BANDWIDTH_HZ)) : Infinity;
+    if (db >= minEdgeDb) marks.push(m);
+    else {
+      weak++;
+      marks.push({ ...m, rise: null, fall: null, problem: `too noisy: its own SNR ${db.toFixed(1)} dB is below the ${minEdgeDb} dB needed to measure edges` });
+    }
+  }
   const strong = marks.filter((m) => m.rise && m.fall).length;
   if (!(snrDb >= minEdgeDb || strong >= MIN_STRONG_MARKS)) return { ...none, weak };
   const kept = new Set(marks.filter((m) => m.rise).map((m) => m.rise!.at50Ms));
@@ -825,4 +824,11 @@ export function sweepRise(options: SweepOptions): SweepResult {
     rows,
     shortestRiseMs: shortest,
   };
+}
+
+/** Highest level [dBc] within ±rbwHz of the offset `f` [Hz], to 0.1 dB; null when no bin is that near. */
+function levelNear(offsets: Float64Array, dbc: Float64Array, f: number, rbwHz: number): number | null {
+  let best: number | null = null;
+  for (let j = 0; j < offsets.length; j++) if (Math.abs(offsets[j]! - f) <= rbwHz) best = best === null ? dbc[j]! : Math.max(best, dbc[j]!);
+  return best === null ? null : round(best, 1);
 }

@@ -89,16 +89,7 @@ export function welchSpectrum(samples: Float32Array, sampleRate: number, options
   const first = -(L - hop);
   const total = Math.ceil((N - first) / hop);
   for (let s = first; s < N; s += hop) {
-    for (let n = 0; n < L; n++) {
-      const i = s + n;
-      frame[n] = i >= 0 && i < N ? samples[i]! * w[n]! : 0;
-    }
-    fft.realTransform(out, frame);
-    for (let k = 0; k <= L / 2; k++) {
-      const re = out[2 * k]!;
-      const im = out[2 * k + 1]!;
-      acc[k] = acc[k]! + re * re + im * im;
-    }
+    addSegment(samples, s, w, fft, frame, out, acc);
     segments++;
     if (options.onProgress && segments % 64 === 0) options.onProgress(Math.min(1, segments / total));
   }
@@ -109,6 +100,26 @@ export function welchSpectrum(samples: Float32Array, sampleRate: number, options
   options.onProgress?.(1);
   const binHz = sampleRate / L;
   return { sampleRate, segmentLength: L, binHz, rbwHz: HANN_ENBW_BINS * binHz, binPower, segments };
+}
+
+/**
+ * Adds |FFT(window · samples[s…s+L))|² (zero outside the signal) to acc. The per-segment work in a
+ * function of its own: called many times, it is compiled once and kept, where a loop inside
+ * welchSpectrum (called once per recording) would be compiled again for every recording.
+ */
+function addSegment(samples: Float32Array, s: number, w: Float64Array, fft: FFT, frame: Float64Array, out: number[], acc: Float64Array): void {
+  const L = w.length;
+  const N = samples.length;
+  for (let n = 0; n < L; n++) {
+    const i = s + n;
+    frame[n] = i >= 0 && i < N ? samples[i]! * w[n]! : 0;
+  }
+  fft.realTransform(out, frame);
+  for (let k = 0; k <= L / 2; k++) {
+    const re = out[2 * k]!;
+    const im = out[2 * k + 1]!;
+    acc[k] = acc[k]! + re * re + im * im;
+  }
 }
 
 /**

@@ -4,11 +4,20 @@
  */
 
 /** Arithmetic mean, or NaN for an empty list. @example mean([1, 2, 3]) //=> 2 */
-export function mean(values: readonly number[]): number {
+export function mean(values: ArrayLike<number>): number {
   if (values.length === 0) return NaN;
   let s = 0;
-  for (const v of values) s += v;
+  for (let i = 0; i < values.length; i++) s += values[i]!;
   return s / values.length;
+}
+
+/**
+ * The values sorted ascending, as a new Float64Array. A typed array sorts numerically without a
+ * comparator; a comparator written inline would be a new function at every call, whose compiled
+ * code the engine cannot keep from one recording to the next.
+ */
+export function sortedCopy(values: ArrayLike<number>): Float64Array {
+  return Float64Array.from(values).sort();
 }
 
 /**
@@ -18,7 +27,7 @@ export function mean(values: readonly number[]): number {
  */
 export function quantile(values: readonly number[], q: number): number {
   if (values.length === 0) return NaN;
-  const s = [...values].sort((a, b) => a - b);
+  const s = sortedCopy(values);
   const pos = (s.length - 1) * q;
   const lo = Math.floor(pos);
   const hi = Math.ceil(pos);
@@ -39,9 +48,9 @@ export function median(values: readonly number[]): number {
  */
 export function trimmedMean(values: readonly number[], fraction = 0.2): number {
   if (values.length === 0) return NaN;
-  const s = [...values].sort((a, b) => a - b);
+  const s = sortedCopy(values);
   const k = Math.floor(s.length * fraction);
-  return mean(s.slice(k, s.length - k));
+  return mean(s.subarray(k, s.length - k));
 }
 
 /** Sample standard deviation (n − 1 in the denominator); 0 for fewer than two values. @example standardDeviation([1, 3]) //=> 1.414… */
@@ -68,7 +77,7 @@ export interface TwoClassSplit {
  * @example splitTwoClasses([60, 62, 180, 185]).threshold //=> 105.6 (√(62·180))
  */
 export function splitTwoClasses(values: readonly number[]): TwoClassSplit | null {
-  const logs = values.filter((v) => v > 0).map(Math.log).sort((a, b) => a - b);
+  const logs = sortedCopy(positiveLogs(values));
   const n = logs.length;
   if (n < 2 || logs[0] === logs[n - 1]) return null;
   const prefix = new Float64Array(n + 1);
@@ -112,4 +121,11 @@ export function fitLine(xs: readonly number[], ys: readonly number[]): { slope: 
   }
   const slope = sxx > 0 ? sxy / sxx : 0;
   return { slope, intercept: my - slope * mx };
+}
+
+/** ln of the positive values, in order. */
+function positiveLogs(values: readonly number[]): number[] {
+  const out: number[] = [];
+  for (let i = 0; i < values.length; i++) if (values[i]! > 0) out.push(Math.log(values[i]!));
+  return out;
 }

@@ -16,7 +16,7 @@
 import { textForPattern } from '../morse/alphabet.js';
 import type { Interval } from '../timeline.js';
 import { checkRange, InputError } from '../errors.js';
-import { fitLine, median, splitTwoClasses, standardDeviation, trimmedMean } from './timing-stats.js';
+import { fitLine, mean, median, splitTwoClasses, standardDeviation, trimmedMean } from './timing-stats.js';
 
 /** Typical length of a class of intervals: the 20 % trimmed mean (see trimmedMean). */
 const typicalOf = (values: readonly number[]): number => trimmedMean(values, 0.2);
@@ -113,20 +113,47 @@ const NOMINAL_UNITS = { dit: 1, dah: 3, element: 1, letter: 3, word: 7 } as cons
 
 function stats(lengthsMs: readonly number[], unit: number): ClassStats | null {
   if (lengthsMs.length === 0) return null;
-  const u = lengthsMs.map((x) => x / unit);
+  const u = divided(lengthsMs, unit);
   return { count: u.length, median: median(u), spread: standardDeviation(u) };
+}
+
+// Loops over the marks are written as loops in module-level functions rather than as callbacks
+// made inside measureTiming: a callback is a new function at every call, whose compiled code the
+// engine does not keep from one recording to the next, so a batch of many files would compile
+// them again for each file (on background threads that the other workers need).
+
+/** values[i] / d for each i. */
+function divided(values: readonly number[], d: number): number[] {
+  const out = new Array<number>(values.length);
+  for (let i = 0; i < values.length; i++) out[i] = values[i]! / d;
+  return out;
+}
+
+/** The values whose flag equals `want`. */
+function where(values: readonly number[], flags: readonly boolean[], want: boolean): number[] {
+  const out: number[] = [];
+  for (let i = 0; i < values.length; i++) if (flags[i] === want) out.push(values[i]!);
+  return out;
+}
+
+/** The gaps of one class. */
+function ofClass(gaps: readonly number[], classes: readonly GapClass[], c: GapClass): number[] {
+  const out: number[] = [];
+  for (let i = 0; i < gaps.length; i++) if (classes[i] === c) out.push(gaps[i]!);
+  return out;
 }
 
 /** Checks marks: finite, each positive in length, in time order and not overlapping. */
 export function checkMarks(marks: readonly Interval[]): void {
   if (marks.length === 0) throw new InputError('no key-down marks to measure');
   let prevEnd = -Infinity;
-  marks.forEach(([a, b], i) => {
+  for (let i = 0; i < marks.length; i++) {
+    const [a, b] = marks[i]!;
     if (!Number.isFinite(a) || !Number.isFinite(b)) throw new InputError(`mark ${i + 1}: times must be numbers (got ${a}, ${b})`);
     if (b <= a) throw new InputError(`mark ${i + 1}: ends at ${b} ms, not after its start ${a} ms`);
     if (a < prevEnd) throw new InputError(`mark ${i + 1}: starts at ${a} ms, before the previous mark ends (${prevEnd} ms)`);
     prevEnd = b;
-  });
+  }
 }
 
 interface Classification {
@@ -145,40 +172,49 @@ function classify(
 ): Classification {
   const split = splitTwoClasses(lens);
   const twoKinds = split !== null && split.highMean / split.lowMean >= 1.7;
-  let isDah: boolean[];
-  if (twoKinds) isDah = lens.map((x) => x > split.threshold);
-  else if (hint !== undefined) isDah = lens.map(() => median(lens) > 2 * hint);
+  const isDah = new Array<boolean>(lens.length);
+  if (twoKinds) for (let i = 0; i < lens.length; i++) isDah[i] = lens[i]! > split.threshold;
   else {
-    isDah = lens.map(() => false);
-    if (lens.length > 1) warnings.push('all marks have about the same length: read as dots (give the intended message to decide)');
+    const allDahs = hint !== undefined && median(lens) > 2 * hint;
+    isDah.fill(allDahs);
+    if (hint === undefined && lens.length > 1) warnings.push('all marks have about the same length: read as dots (give the intended message to decide)');
   }
-  const dits = lens.filter((_, i) => !isDah[i]);
-  const dahs = lens.filter((_, i) => isDah[i]);
+  const dits = where(lens, isDah, false);
+  const dahs = where(lens, isDah, true);
 
   let unit: number;
   if (hint !== undefined) unit = hint;
   else if (dits.length > 0) {
     // The shortest dot periods (dot + element gap) are 2 units whatever the weighting.
-    const periods = lens.flatMap((x, i) => (!isDah[i] && i < gaps.length ? [x + gaps[i]!] : []));
+    const periods: number[] = [];
+    let shortest = Infinity;
+    for (let i = 0; i < lens.length && i < gaps.length; i++) {
+      if (isDah[i]) continue;
+      periods.push(lens[i]! + gaps[i]!);
+      shortest = Math.min(shortest, lens[i]! + gaps[i]!);
+    }
     unit = median(dits);
     if (periods.length > 0) {
-      const shortest = periods.reduce((a, b) => Math.min(a, b), Infinity);
-      const low = periods.filter((p) => p < 1.45 * shortest);
+      const low: number[] = [];
+      for (const p of periods) if (p < 1.45 * shortest) low.push(p);
       const u0 = median(low) / 2;
       const ditShare = median(dits) / u0;
       if (ditShare >= 0.4 && ditShare <= 1.6) unit = u0;
     }
   } else unit = median(dahs) / 3;
 
-  let gapClass: GapClass[] = gaps.map(() => 'letter');
+  const gapClass = new Array<GapClass>(gaps.length).fill('letter');
   for (let iter = 0; iter < 4; iter++) {
     const extra = dits.length > 0 ? typicalOf(dits) - unit : typicalOf(dahs) - 3 * unit;
-    const corrected = gaps.map((g) => g + extra);
-    const longer = corrected.filter((c) => c >= 2 * unit);
+    const longer: number[] = [];
+    for (const g of gaps) if (g + extra >= 2 * unit) longer.push(g + extra);
     const s = splitTwoClasses(longer);
     const boundary = s !== null && s.highMean / s.lowMean >= 1.6 && s.highMean >= 4 * unit ? s.threshold : (wordSplitUnits ?? 5) * unit;
-    gapClass = corrected.map((c) => (c < 2 * unit ? 'element' : c < boundary ? 'letter' : 'word'));
-    const el = gaps.filter((_, i) => gapClass[i] === 'element');
+    for (let i = 0; i < gaps.length; i++) {
+      const c = gaps[i]! + extra;
+      gapClass[i] = c < 2 * unit ? 'element' : c < boundary ? 'letter' : 'word';
+    }
+    const el = ofClass(gaps, gapClass, 'element');
     let next: number;
     if (dits.length > 0 && el.length > 0) next = (typicalOf(dits) + typicalOf(el)) / 2;
     else if (dahs.length > 0 && el.length > 0) next = (typicalOf(dahs) + typicalOf(el)) / 4;
@@ -225,15 +261,18 @@ export function measureTiming(timeline: { marks: readonly Interval[] }, options:
   const maxUnits = checkRange('histogram range', options.histogramMaxUnits ?? 10, 2, 200, 'units');
   const warnings: string[] = [];
 
-  const lens = marks.map(([a, b]) => b - a);
-  const gaps = marks.slice(1).map(([a], i) => a - marks[i]![1]);
+  const lens = new Array<number>(marks.length);
+  const gaps = new Array<number>(marks.length - 1);
+  for (let i = 0; i < marks.length; i++) {
+    lens[i] = marks[i]![1] - marks[i]![0];
+    if (i > 0) gaps[i - 1] = marks[i]![0] - marks[i - 1]![1];
+  }
   const split = options.wordSplitUnits === undefined ? undefined : checkRange('letter/word boundary', options.wordSplitUnits, 2, 1000, 'units');
   const { isDah, gapClass, unitMs: unit } = classify(lens, gaps, hint, split, warnings);
 
-  const dits = lens.filter((_, i) => !isDah[i]);
-  const dahs = lens.filter((_, i) => isDah[i]);
-  const gapsOf = (c: GapClass): number[] => gaps.filter((_, i) => gapClass[i] === c);
-  const el = gapsOf('element');
+  const dits = where(lens, isDah, false);
+  const dahs = where(lens, isDah, true);
+  const el = ofClass(gaps, gapClass, 'element');
   const ditMs = dits.length > 0 ? typicalOf(dits) : null;
   const dahMs = dahs.length > 0 ? typicalOf(dahs) : null;
 
@@ -245,8 +284,8 @@ export function measureTiming(timeline: { marks: readonly Interval[] }, options:
 
   const durationMs = marks[marks.length - 1]![1] - marks[0]![0];
   let nominalUnits = 0;
-  isDah.forEach((d) => (nominalUnits += d ? NOMINAL_UNITS.dah : NOMINAL_UNITS.dit));
-  gapClass.forEach((c) => (nominalUnits += NOMINAL_UNITS[c]));
+  for (const d of isDah) nominalUnits += d ? NOMINAL_UNITS.dah : NOMINAL_UNITS.dit;
+  for (const c of gapClass) nominalUnits += NOMINAL_UNITS[c];
 
   // Typical length of each class [ms], the "fitted grid" for jitter and word speeds.
   const typical = {
@@ -255,50 +294,10 @@ export function measureTiming(timeline: { marks: readonly Interval[] }, options:
     element: el.length > 0 ? typicalOf(el) : 2 * unit - (ditMs ?? unit),
   };
 
-  // Word speeds: each word's element-level time (marks and element gaps) over the same intervals
-  // at the typical class lengths gives its speed factor. The class lengths are then re-estimated
-  // from the lengths with each word's factor divided out, so that a speed change across the
-  // recording does not distort the class shape (ten rounds; it settles in a few).
-  const wordOf = new Int32Array(marks.length);
-  let words = 0;
-  marks.forEach((_, i) => {
-    wordOf[i] = words;
-    if (i < marks.length - 1 && gapClass[i] === 'word') words++;
-  });
-  words++;
-  const hasEl = (i: number): boolean => i < gaps.length && gapClass[i] === 'element';
-  let shape = { ...typical };
-  const factor = new Float64Array(words).fill(1);
-  for (let round = 0; round < 10; round++) {
-    const obs = new Float64Array(words);
-    const exp = new Float64Array(words);
-    marks.forEach((_, i) => {
-      const w = wordOf[i]!;
-      obs[w] += lens[i]!;
-      exp[w] += isDah[i] ? shape.dah : shape.dit;
-      if (hasEl(i)) {
-        obs[w] += gaps[i]!;
-        exp[w] += shape.element;
-      }
-    });
-    let change = 0;
-    for (let w = 0; w < words; w++) {
-      const k = obs[w]! / exp[w]!;
-      change = Math.max(change, Math.abs(k - factor[w]!));
-      factor[w] = k;
-    }
-    if (round > 0 && change < 1e-12) break;
-    const norm = (keep: (i: number) => boolean, len: (i: number) => number): number[] =>
-      marks.flatMap((_, i) => (keep(i) ? [len(i) / factor[wordOf[i]!]!] : []));
-    const d = norm((i) => !isDah[i], (i) => lens[i]!);
-    const D = norm((i) => isDah[i]!, (i) => lens[i]!);
-    const e = norm(hasEl, (i) => gaps[i]!);
-    shape = {
-      dit: d.length > 0 ? typicalOf(d) : shape.dit,
-      dah: D.length > 0 ? typicalOf(D) : shape.dah,
-      element: e.length > 0 ? typicalOf(e) : shape.element,
-    };
-  }
+  // Word speeds and the class lengths with the drift taken out (see fitWordSpeeds).
+  const wordOf = wordIndex(marks.length, gapClass);
+  const words = wordOf.length > 0 ? wordOf[wordOf.length - 1]! + 1 : 1;
+  const { factor, shape } = fitWordSpeeds(lens, gaps, isDah, gapClass, wordOf, words, typical);
   // The unit of the de-drifted shape, by the same rule as the whole-recording unit.
   const shapeUnit = dits.length > 0 && el.length > 0 ? (shape.dit + shape.element) / 2 : dits.length > 0 ? shape.dit : shape.dah / 3;
   const wordWpm = Array.from(factor, (k) => 1200 / (k * shapeUnit));
@@ -307,30 +306,9 @@ export function measureTiming(timeline: { marks: readonly Interval[] }, options:
   // Edge jitter: within each character, the edges against the class lengths laid end to end (at
   // the word's own speed, so drift is not counted as jitter), with the character's own offset
   // removed. Degrees of freedom: edges − 1 per character − 1 per word (its fitted speed).
-  let ssr = 0;
-  let dof = -wordWpm.length;
-  const chars: number[][] = [];
-  let current: number[] = [];
-  marks.forEach((_, i) => {
-    current.push(i);
-    if (i === marks.length - 1 || gapClass[i] !== 'element') {
-      chars.push(current);
-      current = [];
-    }
-  });
-  for (const ch of chars) {
-    const resid: number[] = [];
-    let t = 0;
-    ch.forEach((i, k) => {
-      if (k > 0) t += shape.element * scale[i]!;
-      resid.push(marks[i]![0] - t);
-      t += (isDah[i] ? shape.dah : shape.dit) * scale[i]!;
-      resid.push(marks[i]![1] - t);
-    });
-    const m = resid.reduce((a, b) => a + b, 0) / resid.length;
-    for (const r of resid) ssr += (r - m) * (r - m);
-    dof += resid.length - 1;
-  }
+  const chars = characterRuns(marks.length, gapClass);
+  const { ssr, dof: charDof } = jitterSums(marks, chars, isDah, shape, scale);
+  const dof = charDof - wordWpm.length;
   const jitterPct = dof > 0 ? (100 * Math.sqrt(ssr / dof)) / unit : null;
 
   let driftWpm: number | null = null;
@@ -339,12 +317,13 @@ export function measureTiming(timeline: { marks: readonly Interval[] }, options:
     driftWpm = slope * (wordWpm.length - 1);
   }
 
-  const markHist = histogramOf(lens.map((x) => x / unit), binUnits, maxUnits);
-  const gapHist = histogramOf(gaps.map((x) => x / unit), binUnits, maxUnits);
+  const markHist = histogramOf(divided(lens, unit), binUnits, maxUnits);
+  const gapHist = histogramOf(divided(gaps, unit), binUnits, maxUnits);
 
   let text = '';
   for (const ch of chars) {
-    const pattern = ch.map((i) => (isDah[i] ? '-' : '.')).join('');
+    let pattern = '';
+    for (const i of ch) pattern += isDah[i] ? '-' : '.';
     text += textForPattern(pattern) ?? '*';
     const last = ch[ch.length - 1]!;
     if (gapClass[last] === 'word') text += ' ';
@@ -361,13 +340,133 @@ export function measureTiming(timeline: { marks: readonly Interval[] }, options:
     ditMs,
     dahMs,
     markUnits: { dit: stats(dits, unit), dah: stats(dahs, unit) },
-    gapUnits: { element: stats(el, unit), letter: stats(gapsOf('letter'), unit), word: stats(gapsOf('word'), unit) },
+    gapUnits: { element: stats(el, unit), letter: stats(ofClass(gaps, gapClass, 'letter'), unit), word: stats(ofClass(gaps, gapClass, 'word'), unit) },
     jitterPct,
     driftWpm,
     wordWpm,
     histogram: { binUnits, maxUnits, marks: markHist.counts, gaps: gapHist.counts, marksOver: markHist.over, gapsOver: gapHist.over },
     text,
-    elements: marks.map(([a, b], i) => ({ startMs: a, endMs: b, kind: isDah[i] ? 'dah' : 'dit', gapAfter: i < gapClass.length ? gapClass[i]! : null })),
+    elements: measuredElements(marks, isDah, gapClass),
     warnings,
   };
+}
+
+function measuredElements(marks: readonly Interval[], isDah: readonly boolean[], gapClass: readonly GapClass[]): MeasuredElement[] {
+  const out = new Array<MeasuredElement>(marks.length);
+  for (let i = 0; i < marks.length; i++) {
+    out[i] = { startMs: marks[i]![0], endMs: marks[i]![1], kind: isDah[i] ? 'dah' : 'dit', gapAfter: i < gapClass.length ? gapClass[i]! : null };
+  }
+  return out;
+}
+
+/** Word number of each mark: a new word after each word gap. */
+function wordIndex(markCount: number, gapClass: readonly GapClass[]): Int32Array {
+  const wordOf = new Int32Array(markCount);
+  let words = 0;
+  for (let i = 0; i < markCount; i++) {
+    wordOf[i] = words;
+    if (i < markCount - 1 && gapClass[i] === 'word') words++;
+  }
+  return wordOf;
+}
+
+interface ClassLengths {
+  dit: number;
+  dah: number;
+  element: number;
+}
+
+/**
+ * Word speeds: each word's element-level time (marks and element gaps) over the same intervals at
+ * the typical class lengths gives its speed factor. The class lengths are then re-estimated from the
+ * lengths with each word's factor divided out, so that a speed change across the recording does not
+ * distort the class shape (ten rounds; it settles in a few).
+ */
+function fitWordSpeeds(
+  lens: readonly number[],
+  gaps: readonly number[],
+  isDah: readonly boolean[],
+  gapClass: readonly GapClass[],
+  wordOf: Int32Array,
+  words: number,
+  typical: ClassLengths,
+): { factor: Float64Array; shape: ClassLengths } {
+  let shape = { ...typical };
+  const factor = new Float64Array(words).fill(1);
+  for (let round = 0; round < 10; round++) {
+    const obs = new Float64Array(words);
+    const exp = new Float64Array(words);
+    for (let i = 0; i < lens.length; i++) {
+      const w = wordOf[i]!;
+      obs[w] += lens[i]!;
+      exp[w] += isDah[i] ? shape.dah : shape.dit;
+      if (i < gaps.length && gapClass[i] === 'element') {
+        obs[w] += gaps[i]!;
+        exp[w] += shape.element;
+      }
+    }
+    let change = 0;
+    for (let w = 0; w < words; w++) {
+      const k = obs[w]! / exp[w]!;
+      change = Math.max(change, Math.abs(k - factor[w]!));
+      factor[w] = k;
+    }
+    if (round > 0 && change < 1e-12) break;
+    // Lengths with each word's factor divided out, by class.
+    const d: number[] = [];
+    const D: number[] = [];
+    const e: number[] = [];
+    for (let i = 0; i < lens.length; i++) {
+      const k = factor[wordOf[i]!]!;
+      (isDah[i] ? D : d).push(lens[i]! / k);
+      if (i < gaps.length && gapClass[i] === 'element') e.push(gaps[i]! / k);
+    }
+    shape = {
+      dit: d.length > 0 ? typicalOf(d) : shape.dit,
+      dah: D.length > 0 ? typicalOf(D) : shape.dah,
+      element: e.length > 0 ? typicalOf(e) : shape.element,
+    };
+  }
+  return { factor, shape };
+}
+
+/** Marks grouped into characters (runs joined by element gaps), as lists of mark indices. */
+function characterRuns(markCount: number, gapClass: readonly GapClass[]): number[][] {
+  const chars: number[][] = [];
+  let current: number[] = [];
+  for (let i = 0; i < markCount; i++) {
+    current.push(i);
+    if (i === markCount - 1 || gapClass[i] !== 'element') {
+      chars.push(current);
+      current = [];
+    }
+  }
+  return chars;
+}
+
+/** Sum of squared edge residuals against the fitted grid, each character's offset removed, and their degrees of freedom (edges − 1 per character). */
+function jitterSums(
+  marks: readonly Interval[],
+  chars: readonly number[][],
+  isDah: readonly boolean[],
+  shape: ClassLengths,
+  scale: Float64Array,
+): { ssr: number; dof: number } {
+  let ssr = 0;
+  let dof = 0;
+  for (const ch of chars) {
+    const resid: number[] = [];
+    let t = 0;
+    for (let k = 0; k < ch.length; k++) {
+      const i = ch[k]!;
+      if (k > 0) t += shape.element * scale[i]!;
+      resid.push(marks[i]![0] - t);
+      t += (isDah[i] ? shape.dah : shape.dit) * scale[i]!;
+      resid.push(marks[i]![1] - t);
+    }
+    const m = mean(resid);
+    for (const r of resid) ssr += (r - m) * (r - m);
+    dof += resid.length - 1;
+  }
+  return { ssr, dof };
 }

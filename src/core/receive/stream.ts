@@ -446,8 +446,7 @@ export class StreamDecoder {
         // Phase noise of a slot with carrier-to-noise ratio ρ ≈ 1/(2ρ) [analytic, high SNR], at most
         // that of a uniform phase; ρ from the slot's own power less the noise.
         const N = this.slicer!.noisePow;
-        const phaseVar = (p: number): number => Math.min((Math.PI * Math.PI) / 3, N / (2 * Math.max(p - N, 1e-3 * N)));
-        tracker.measure(mixer.toneHz, Math.atan2(ci, cr), phaseVar(p1) + phaseVar(p0));
+        tracker.measure(mixer.toneHz, Math.atan2(ci, cr), phaseVariance(p1, N) + phaseVariance(p0, N));
       }
       tracker.clamp(Math.max(1, this.toneStartHz - TONE_RANGE_HZ), Math.min(this.sampleRate / 2 - 1, this.toneStartHz + TONE_RANGE_HZ), TONE_RATE_MAX);
       // Retune (a table rebuild) only when the tracked tone has moved a little.
@@ -539,61 +538,84 @@ export class StreamDecoder {
     const f0 = aSlot * k;
     const f1 = bSlot * k;
     if (this.frameCount - (f0 - 2 * k) > R || f0 - 2 * k < 0 || f1 + k > this.frameCount) return [startMs, endMs];
-    const pow = (f: number): number => this.frameAmp[f % R]! ** 2;
     // Key-up power: the frames one to two slots outside the decided edges (inside the gaps around
     // the mark when the decision is within a slot of the truth), or the slicer's figure.
     let gapSum = 0;
     let gapCount = 0;
-    for (let f = f0 - 2 * k; f < f0 - k; f++, gapCount++) gapSum += pow(f);
-    for (let f = f1 + k; f < Math.min(f1 + 2 * k, this.frameCount); f++, gapCount++) gapSum += pow(f);
+    for (let f = f0 - 2 * k; f < f0 - k; f++, gapCount++) gapSum += this.framePow(f);
+    for (let f = f1 + k; f < Math.min(f1 + 2 * k, this.frameCount); f++, gapCount++) gapSum += this.framePow(f);
     const noisePow = gapCount > 0 ? gapSum / gapCount : this.slicer!.noisePow / k;
-    const meanPow = (from: number, to: number): number | null => {
-      let sum = 0;
-      for (let f = from; f <= to; f++) sum += pow(f);
-      return to >= from ? sum / (to - from + 1) : null;
-    };
-    const amp = (f: number): number => Math.sqrt(Math.max(0, pow(f) - noisePow));
-    const spf = this.mixer!.samplesPerFrame;
-    // A frame averages samples f·spf … (f+1)·spf − 1: its centre is half a sample before (f + ½)·spf.
-    const centreMs = (f: number): number => ((this.originSample + (f + 0.5) * spf - 0.5) * 1000) / this.sampleRate;
-    const frameAt = (ms: number): number => ((ms * this.sampleRate) / 1000 - this.originSample + 0.5) / spf - 0.5;
-    const crossing = (half: number, from: number, to: number, rising: boolean, near: number): number | null => {
-      let best: number | null = null;
-      for (let f = Math.max(1, from); f <= to; f++) {
-        const p = amp(f - 1);
-        const q = amp(f);
-        const hit = rising ? p < half && q >= half : p >= half && q < half;
-        if (!hit) continue;
-        const t = centreMs(f - 1) + ((half - p) / (q - p)) * (centreMs(f) - centreMs(f - 1));
-        if (best === null || Math.abs(t - near) < Math.abs(best - near)) best = t;
-      }
-      return best;
-    };
     // First pass: the mark's level from the frames a slot inside the decided edges.
     const inner = f1 - f0 > 2 * k ? k : 1;
-    const p1 = meanPow(f0 + inner, f1 - inner - 1);
+    const p1 = this.meanFramePow(f0 + inner, f1 - inner - 1);
     if (p1 === null) return [startMs, endMs];
     const markAmp = Math.sqrt(Math.max(0, p1 - noisePow));
     // Mark amplitude at least 3 times the noise's RMS amplitude, or the crossing is left alone.
     if (markAmp < 3 * Math.sqrt(noisePow)) return [startMs, endMs];
-    let rise = crossing(0.5 * markAmp, f0 - k, f0 + k, true, startMs);
-    let fall = crossing(0.5 * markAmp, f1 - k, f1 + k, false, endMs);
+    let rise = this.frameCrossing(0.5 * markAmp, f0 - k, f0 + k, true, startMs, noisePow);
+    let fall = this.frameCrossing(0.5 * markAmp, f1 - k, f1 + k, false, endMs, noisePow);
     // Second pass: the decided edges may be a slot off, so the first level can include edge frames;
     // take it again over the middle half of the refined mark (clear of both edges) and recross.
     if (rise !== null && fall !== null && fall > rise) {
       const quarter = (fall - rise) / 4;
-      const p2 = meanPow(Math.ceil(frameAt(rise + quarter)), Math.floor(frameAt(fall - quarter)));
+      const p2 = this.meanFramePow(Math.ceil(this.frameAt(rise + quarter)), Math.floor(this.frameAt(fall - quarter)));
       if (p2 !== null) {
         const amp2 = Math.sqrt(Math.max(0, p2 - noisePow));
         if (amp2 >= 3 * Math.sqrt(noisePow)) {
-          rise = crossing(0.5 * amp2, f0 - k, f0 + k, true, rise) ?? rise;
-          fall = crossing(0.5 * amp2, f1 - k, f1 + k, false, fall) ?? fall;
+          rise = this.frameCrossing(0.5 * amp2, f0 - k, f0 + k, true, rise, noisePow) ?? rise;
+          fall = this.frameCrossing(0.5 * amp2, f1 - k, f1 + k, false, fall, noisePow) ?? fall;
         }
       }
     }
     const s = rise ?? startMs;
     const e = fall ?? endMs;
     return e > s ? [s, e] : [startMs, endMs];
+  }
+
+  // Helpers of refineEdges, as methods rather than callbacks made at each call: the engine keeps
+  // a method's compiled code from one recording to the next (a batch of many files would
+  // otherwise compile them again for every file).
+
+  /** Power of frame f, from the ring. */
+  private framePow(f: number): number {
+    const a = this.frameAmp[f % this.frameAmp.length]!;
+    return a * a;
+  }
+
+  /** Mean power of frames from…to (inclusive), or null when the range is empty. */
+  private meanFramePow(from: number, to: number): number | null {
+    let sum = 0;
+    for (let f = from; f <= to; f++) sum += this.framePow(f);
+    return to >= from ? sum / (to - from + 1) : null;
+  }
+
+  /** Centre of frame f [ms]: a frame averages samples f·spf … (f+1)·spf − 1, so half a sample before (f + ½)·spf. */
+  private frameCentreMs(f: number): number {
+    return ((this.originSample + (f + 0.5) * this.mixer!.samplesPerFrame - 0.5) * 1000) / this.sampleRate;
+  }
+
+  /** Fractional frame whose centre is at `ms`. */
+  private frameAt(ms: number): number {
+    return ((ms * this.sampleRate) / 1000 - this.originSample + 0.5) / this.mixer!.samplesPerFrame - 0.5;
+  }
+
+  /**
+   * Where the noise-corrected frame amplitude √max(0, |z|² − noisePow) crosses `half` upwards
+   * (`rising`) or downwards between frames from…to, interpolated linearly between frame centres;
+   * of several crossings the one nearest `near` [ms]; null when there is none.
+   */
+  private frameCrossing(half: number, from: number, to: number, rising: boolean, near: number, noisePow: number): number | null {
+    let best: number | null = null;
+    for (let f = Math.max(1, from); f <= to; f++) {
+      const p = Math.sqrt(Math.max(0, this.framePow(f - 1) - noisePow));
+      const q = Math.sqrt(Math.max(0, this.framePow(f) - noisePow));
+      const hit = rising ? p < half && q >= half : p >= half && q < half;
+      if (!hit) continue;
+      const c0 = this.frameCentreMs(f - 1);
+      const t = c0 + ((half - p) / (q - p)) * (this.frameCentreMs(f) - c0);
+      if (best === null || Math.abs(t - near) < Math.abs(best - near)) best = t;
+    }
+    return best;
   }
 
   /** Updates level statistics and the duration model from a decided segment. */
@@ -616,30 +638,25 @@ export class StreamDecoder {
     // Timing spread (jitter) of each class, tracked as the mean square of ln(d / mean): machine
     // keying earns tight priors, hand keying wide ones.
     const sp = (m.spread ??= { dit: 0.3, dah: 0.3, elementGap: 0.35, letterGap: 0.35, wordGap: 0.35 });
-    const spreadOf = (key: 'dit' | 'dah' | 'elementGap' | 'letterGap', mean: number): void => {
-      const dev = Math.log(Math.max(d, 0.5) / mean);
-      const v = sp[key] * sp[key] + 0.05 * (dev * dev + 1 / (12 * mean * mean) - sp[key] * sp[key]);
-      sp[key] = Math.min(SPREAD_MAX, Math.max(SPREAD_MIN, Math.sqrt(Math.max(0, v))));
-    };
     switch (s.kind) {
       case 'mark':
         if (TRIE.symbol[s.node] === 1) {
-          spreadOf('dah', m.dah);
+          sp.dah = trackedSpread(sp.dah, d, m.dah);
           m.dah += a * (d - m.dah);
           st.unitSum += d / 3;
         } else {
-          spreadOf('dit', m.dit);
+          sp.dit = trackedSpread(sp.dit, d, m.dit);
           m.dit += a * (d - m.dit);
           st.unitSum += d;
         }
         st.unitCount++;
         break;
       case 'element-gap':
-        spreadOf('elementGap', m.elementGap);
+        sp.elementGap = trackedSpread(sp.elementGap, d, m.elementGap);
         m.elementGap += a * (d - m.elementGap);
         break;
       case 'letter-gap':
-        spreadOf('letterGap', m.letterGap);
+        sp.letterGap = trackedSpread(sp.letterGap, d, m.letterGap);
         m.letterGap += a * (d - m.letterGap);
         st.letterGapSum += d;
         st.letterGapCount++;
@@ -734,6 +751,25 @@ export function constrainModel(m: DurationModel): DurationModel {
   m.wordGap = Math.max(m.wordGap, 1.6 * m.letterGap, 5 * unit);
   for (const key of ['dit', 'dah', 'elementGap', 'letterGap', 'wordGap'] as const) m[key] = Math.max(1, m[key]);
   return m;
+}
+
+/**
+ * Phase noise of a slot with carrier-to-noise ratio ρ ≈ 1/(2ρ) [analytic, high SNR], at most that of
+ * a uniform phase (π²/3); ρ from the slot's own power p less the noise power N.
+ */
+function phaseVariance(p: number, N: number): number {
+  return Math.min((Math.PI * Math.PI) / 3, N / (2 * Math.max(p - N, 1e-3 * N)));
+}
+
+/**
+ * One step of a class's tracked timing spread, the running mean square of ln(d / mean) plus the
+ * variance that rounding d to whole slots adds (1/12 slot², on the log scale 1/(12·mean²)), kept
+ * within SPREAD_MIN…SPREAD_MAX.
+ */
+function trackedSpread(spread: number, d: number, mean: number): number {
+  const dev = Math.log(Math.max(d, 0.5) / mean);
+  const v = spread * spread + 0.05 * (dev * dev + 1 / (12 * mean * mean) - spread * spread);
+  return Math.min(SPREAD_MAX, Math.max(SPREAD_MIN, Math.sqrt(Math.max(0, v))));
 }
 
 const round = (ms: number): number => Math.round(ms * 10) / 10;
