@@ -167,7 +167,7 @@ async function decodeChunks(audio: AudioSource, options: StreamDecodeOptions): P
       feed(chunk[channel]!);
       continue;
     }
-    held.push(chunk);
+    held.push(audio.reusesChunks ? chunk.map((a) => a.slice()) : chunk); // kept past the next chunk
     heldFrames += chunk[0]!.length;
     if (heldFrames >= PICK_SECONDS * sampleRate) choose();
   }
@@ -226,7 +226,7 @@ export async function analyzeRecording(path: string, options: AnalyzeOptions = {
 async function analyzeInto(row: BatchRow, path: string, options: AnalyzeOptions): Promise<void> {
   // Every file streams (block by block, whatever its size) unless told otherwise: the analysis goes
   // through the audio once, so reading it whole would only cost memory and a second pass to convert.
-  const audio = await openAudio(path, { ...options, streamAboveBytes: options.streamAboveBytes ?? 0 });
+  const audio = await openAudio(path, { ...options, streamAboveBytes: options.streamAboveBytes ?? 0, reuseChunks: true });
   const keepSeconds = options.skipShape ? 0 : (options.shapeSeconds ?? 60);
   const { result, excerpt, channelNote } = await decodeAudioSource(audio, { toneHz: options.toneHz, channel: options.channel, keepSeconds, onProgress: options.onProgress });
   const sampleRate = audio.sampleRate;

@@ -34,6 +34,11 @@ export interface OpenAudioOptions {
   streamAboveBytes?: number;
   /** Block size for streamed reads [bytes] (default 1 MiB). */
   blockBytes?: number;
+  /**
+   * Streamed input: hand out each chunk in arrays reused for the next one (valid until the next
+   * chunk is pulled; copy what you keep). Saves a new array per block on long recordings.
+   */
+  reuseChunks?: boolean;
 }
 
 export interface AudioSource {
@@ -47,6 +52,8 @@ export interface AudioSource {
   durationMs: number | null;
   /** True when read in chunks rather than whole. */
   streaming: boolean;
+  /** True when each chunk's arrays are reused for the next chunk (see OpenAudioOptions.reuseChunks). */
+  reusesChunks: boolean;
   /** Filled as reading proceeds (truncated data, NaN samples read as 0, …); complete once chunks() has ended. */
   warnings: string[];
   /** The audio, chunk by chunk (one Float32Array per channel). Can be iterated once. */
@@ -105,10 +112,11 @@ export async function openAudio(pathOrDash: string, options: OpenAudioOptions = 
   } else {
     blocks = readFileBlocks(pathOrDash, options.blockBytes)[Symbol.asyncIterator]();
   }
+  const reuse = options.reuseChunks ?? false;
   const parser: Parser =
     options.raw !== undefined
-      ? new RawPcmParser(name, { encoding: options.raw, sampleRate: options.rate!, channelCount: options.channels ?? 1 })
-      : new WavStreamParser(name);
+      ? new RawPcmParser(name, { encoding: options.raw, sampleRate: options.rate!, channelCount: options.channels ?? 1, reuse })
+      : new WavStreamParser(name, { reuse });
 
   // Read until the header is known; keep the audio those first blocks held (at most one block).
   const early: Float32Array[][] = [];
@@ -121,7 +129,8 @@ export async function openAudio(pathOrDash: string, options: OpenAudioOptions = 
         parser.finish(); // throws the right message (empty, not a WAV, no fmt, no data)
         break;
       }
-      early.push(...parser.push(r.value));
+      // Copies when arrays are reused: more blocks may be needed before the header is complete.
+      for (const c of parser.push(r.value)) early.push(reuse ? c.map((a) => a.slice()) : c);
     }
   } catch (err) {
     await blocks.return?.(); // close the file now, not at garbage collection
@@ -145,6 +154,7 @@ export async function openAudio(pathOrDash: string, options: OpenAudioOptions = 
     encoding: format.encoding,
     durationMs,
     streaming: true,
+    reusesChunks: reuse,
     warnings,
     chunks() {
       if (used) throw new Error('audio chunks can be read only once');
@@ -213,6 +223,7 @@ export function openWavBytes(name: string, bytes: Uint8Array): AudioSource {
     encoding: f.encoding,
     durationMs: (frames / f.sampleRate) * 1000,
     streaming: false,
+    reusesChunks: false,
     warnings,
     chunks() {
       if (used) throw new Error('audio chunks can be read only once');
@@ -249,6 +260,6 @@ export function concatChunks(parts: readonly Float32Array[][], channelCount: num
  */
 export async function readAllAudio(source: AudioSource): Promise<Float32Array[]> {
   const parts: Float32Array[][] = [];
-  for await (const c of source.chunks()) parts.push(c);
+  for await (const c of source.chunks()) parts.push(source.reusesChunks ? c.map((a) => a.slice()) : c);
   return concatChunks(parts, source.channelCount);
 }

@@ -81,11 +81,20 @@ export class PcmDeinterleaver {
   private carry: Uint8Array;
   private carryLength = 0;
   private work = new Uint8Array(0);
+  private readonly reuse: boolean;
+  /** Output arrays kept between pushes (with `reuse`), one per channel. */
+  private outBuffers: Float32Array[] = [];
 
-  constructor(format: PcmFormat) {
+  /**
+   * @param options - `reuse`: hand out views of arrays kept between pushes (each chunk is valid until
+   *   the next push; a consumer that keeps samples copies them). Saves allocating (and the garbage
+   *   collector freeing) a new array per block on long recordings.
+   */
+  constructor(format: PcmFormat, options: { reuse?: boolean } = {}) {
     this.format = format;
     this.frameSize = frameBytes(format);
     this.carry = new Uint8Array(this.frameSize);
+    this.reuse = options.reuse ?? false;
   }
 
   /** Bytes of an incomplete last frame held back (0 at a frame boundary). */
@@ -119,7 +128,11 @@ export class PcmDeinterleaver {
   private convert(work: Uint8Array, frames: number): Float32Array[] {
     const nch = this.format.channelCount;
     const out: Float32Array[] = [];
-    for (let c = 0; c < nch; c++) out.push(new Float32Array(frames));
+    if (this.reuse) {
+      // Sized from the bytes pushed (like `work`), never from a header field.
+      if ((this.outBuffers[0]?.length ?? -1) < frames) this.outBuffers = Array.from({ length: nch }, () => new Float32Array(frames));
+      for (let c = 0; c < nch; c++) out.push(this.outBuffers[c]!.subarray(0, frames));
+    } else for (let c = 0; c < nch; c++) out.push(new Float32Array(frames));
     const n = frames * nch;
     const buf = work.buffer;
     const off = work.byteOffset;
@@ -251,10 +264,13 @@ export class WavStreamParser {
   private dataLeft = Infinity;
   private deinterleaver: PcmDeinterleaver | null = null;
   private readonly headerOnly: boolean;
+  private readonly reuse: boolean;
 
-  constructor(name: string, options: { headerOnly?: boolean } = {}) {
+  /** @param options - `headerOnly`: stop after the header; `reuse`: see PcmDeinterleaver (each chunk valid until the next push). */
+  constructor(name: string, options: { headerOnly?: boolean; reuse?: boolean } = {}) {
     this.name = name;
     this.headerOnly = options.headerOnly ?? false;
+    this.reuse = options.reuse ?? false;
   }
 
   /** Non-finite float samples replaced by 0 so far. */
@@ -412,7 +428,7 @@ export class WavStreamParser {
       extensible: this.extensible,
     };
     this.dataLeft = open ? Infinity : this.chunkSize;
-    this.deinterleaver = new PcmDeinterleaver(this.format);
+    this.deinterleaver = new PcmDeinterleaver(this.format, { reuse: this.reuse });
     this.state = 'data';
     this.pendingLength = 0;
   }
@@ -427,11 +443,12 @@ export class RawPcmParser {
   readonly format: PcmFormat & { encoding: string };
   private readonly deinterleaver: PcmDeinterleaver;
 
-  constructor(name: string, options: { encoding: RawEncoding; sampleRate: number; channelCount: number }) {
+  /** @param options - Layout; `reuse`: see PcmDeinterleaver (each chunk valid until the next push). */
+  constructor(name: string, options: { encoding: RawEncoding; sampleRate: number; channelCount: number; reuse?: boolean }) {
     this.name = name;
     const sampleFormat: SampleFormat = options.encoding === 'f32le' ? 'f32' : 's16';
     this.format = { sampleRate: options.sampleRate, channelCount: options.channelCount, sampleFormat, encoding: `raw ${describeSampleFormat(sampleFormat)}` };
-    this.deinterleaver = new PcmDeinterleaver(this.format);
+    this.deinterleaver = new PcmDeinterleaver(this.format, { reuse: options.reuse });
   }
 
   push(bytes: Uint8Array): Float32Array[][] {

@@ -84,7 +84,7 @@ and a confidence 0…1. Unknown patterns print as *. Silence or noise is not an 
 empty and a warning says no keyed signal was found.`,
     )
     .action(async (file: string, o: DecodeCliOptions) => {
-      const audio = await openAudio(file, { raw: o.raw, rate: o.rate, channels: o.channels, stdin: ctx.io.stdin });
+      const audio = await openAudio(file, { raw: o.raw, rate: o.rate, channels: o.channels, stdin: ctx.io.stdin, reuseChunks: true });
       if (o.channel !== undefined && o.channel > audio.channelCount) {
         const n = audio.channelCount;
         throw new InputError(`${audio.name}: --channel ${o.channel} does not exist (the ${file === '-' ? 'input' : 'file'} has ${n} channel${n === 1 ? '' : 's'})`);

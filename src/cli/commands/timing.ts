@@ -38,7 +38,7 @@ async function readObserved(path: string, o: TimingCliOptions, ctx: CommandConte
   const head = (await peekFile(path, 512)).toString('latin1');
   if (head.startsWith('RIFF')) {
     // Streamed through the receiver chunk by chunk: memory stays bounded for long recordings.
-    const audio = await openAudio(path);
+    const audio = await openAudio(path, { reuseChunks: true });
     const progress = createProgress(ctx.io, { label: path, audioSeconds: audio.durationMs !== null ? audio.durationMs / 1000 : null });
     const { result, channel, channelNote } = await decodeAudioSource(audio, { toneHz: o.tone, onProgress: (f) => progress.update(f) });
     progress.done();
