@@ -5,23 +5,30 @@
  * a phasor that advances once per frame, so each input sample costs two multiply-adds with no
  * dependency between samples. Everything after the mixer runs at the frame rate.
  */
+/** Slots of Mixer.st. */
+const P_RE = 0;
+const P_IM = 1;
+const STEP_RE = 2;
+const STEP_IM = 3;
+const ACC_RE = 4;
+const ACC_IM = 5;
+const IMG_RE = 6;
+const IMG_IM = 7;
+
 export class Mixer {
   readonly samplesPerFrame: number;
   private readonly tabRe: Float64Array;
   private readonly tabIm: Float64Array;
-  /** e^(−jω·n0) at the start of the current frame. */
-  private pr = 1;
-  private pi = 0;
-  /** e^(−jω·samplesPerFrame): the phasor's step per frame. */
-  private stepRe = 1;
-  private stepIm = 0;
-  private accRe = 0;
-  private accIm = 0;
+  /**
+   * Running state, in one Float64Array:
+   * [P_RE, P_IM] e^(−jω·n0) at the start of the current frame; [STEP_RE, STEP_IM] e^(−jω·samplesPerFrame),
+   * the phasor's step per frame; [ACC_RE, ACC_IM] the current frame's sums so far; [IMG_RE, IMG_IM]
+   * D = (1/n)·Σ e^(−j·2ω·m) over one frame, the boxcar's gain at the image (twice the tone).
+   */
+  private readonly st = new Float64Array(8);
+  /** Samples summed into the current frame so far. */
   private count = 0;
   private toneHzValue = 0;
-  /** D = (1/n)·Σ e^(−j·2ω·m) over one frame: the boxcar's gain at the image (twice the tone). */
-  private imgRe = 0;
-  private imgIm = 0;
 
   /**
    * @param sampleRate - Input sample rate [Hz].
@@ -37,6 +44,8 @@ export class Mixer {
     this.samplesPerFrame = Math.max(1, Math.round(samplesPerFrame));
     this.tabRe = new Float64Array(this.samplesPerFrame);
     this.tabIm = new Float64Array(this.samplesPerFrame);
+    primeProcessRange();
+    this.st[P_RE] = 1; // the phasor starts at e^0
     this.setTone(toneHz);
   }
 
@@ -68,17 +77,17 @@ export class Mixer {
       im = re * ci + im * cr;
       re = nr;
     }
-    this.stepRe = Math.cos(w * n);
-    this.stepIm = -Math.sin(w * n);
+    this.st[STEP_RE] = Math.cos(w * n);
+    this.st[STEP_IM] = -Math.sin(w * n);
     // Geometric sum in closed form: (1 − e^(−j2ωn)) / (n·(1 − e^(−j2ω))), or 1 where 2ω is a multiple of 2π.
     const den = Math.sin(w);
     if (Math.abs(den) < 1e-12) {
-      this.imgRe = 1;
-      this.imgIm = 0;
+      this.st[IMG_RE] = 1;
+      this.st[IMG_IM] = 0;
     } else {
       const mag = Math.sin(w * n) / (n * den);
-      this.imgRe = mag * Math.cos(w * (n - 1));
-      this.imgIm = -mag * Math.sin(w * (n - 1));
+      this.st[IMG_RE] = mag * Math.cos(w * (n - 1));
+      this.st[IMG_IM] = -mag * Math.sin(w * (n - 1));
     }
   }
 
@@ -91,15 +100,21 @@ export class Mixer {
    * c = (z − G·conj(z)) / (1 − |G|²).
    */
   process(chunk: Float32Array, outRe: Float64Array, outIm: Float64Array, gainRe?: Float64Array, gainIm?: Float64Array): number {
+    return this.processRange(chunk, 0, chunk.length, outRe, outIm, gainRe, gainIm);
+  }
+
+  /** As process, for chunk[from…to) (no subarray view to allocate per call). */
+  processRange(chunk: Float32Array, from: number, to: number, outRe: Float64Array, outIm: Float64Array, gainRe?: Float64Array, gainIm?: Float64Array): number {
+    const st = this.st;
     const n = this.samplesPerFrame;
     const tabRe = this.tabRe;
     const tabIm = this.tabIm;
-    let re = this.accRe;
-    let im = this.accIm;
+    let re = st[ACC_RE]!;
+    let im = st[ACC_IM]!;
     let count = this.count;
     let frames = 0;
-    let i = 0;
-    const len = chunk.length;
+    let i = from;
+    const len = to;
     while (i < len) {
       const stop = Math.min(len, i + (n - count));
       // Four independent partial sums, so that the additions of neighbouring samples overlap
@@ -127,33 +142,55 @@ export class Mixer {
       re += re1 + re2 + re3;
       im += im1 + im2 + im3;
       if (count === n) {
-        const pr = this.pr;
-        const pi = this.pi;
+        const pr = st[P_RE]!;
+        const pi = st[P_IM]!;
         outRe[frames] = (re * pr - im * pi) / n;
         outIm[frames] = (re * pi + im * pr) / n;
         if (gainRe && gainIm) {
           // G = D·p², p = e^(−jω·n0) the phasor at the frame's first sample.
           const p2r = pr * pr - pi * pi;
           const p2i = 2 * pr * pi;
-          gainRe[frames] = this.imgRe * p2r - this.imgIm * p2i;
-          gainIm[frames] = this.imgRe * p2i + this.imgIm * p2r;
+          gainRe[frames] = st[IMG_RE]! * p2r - st[IMG_IM]! * p2i;
+          gainIm[frames] = st[IMG_RE]! * p2i + st[IMG_IM]! * p2r;
         }
         frames++;
         re = 0;
         im = 0;
         count = 0;
-        let nr = pr * this.stepRe - pi * this.stepIm;
-        let ni = pr * this.stepIm + pi * this.stepRe;
+        let nr = pr * st[STEP_RE]! - pi * st[STEP_IM]!;
+        let ni = pr * st[STEP_IM]! + pi * st[STEP_RE]!;
         const g = 1.5 - 0.5 * (nr * nr + ni * ni); // keep the phasor on the unit circle
         nr *= g;
         ni *= g;
-        this.pr = nr;
-        this.pi = ni;
+        st[P_RE] = nr;
+        st[P_IM] = ni;
       }
     }
-    this.accRe = re;
-    this.accIm = im;
+    st[ACC_RE] = re;
+    st[ACC_IM] = im;
     this.count = count;
     return frames;
+  }
+}
+
+let primed = false;
+/**
+ * Runs processRange once over a few odd-length ranges (with and without image gains) on a small
+ * mixer, so that every path of its loop has run before the engine optimises it. Otherwise a rarely
+ * taken path (the last few samples of a block, the start in mid-frame) reached only after
+ * optimisation sends the optimised loop back to slow code again and again, hundreds of times per
+ * recording, boxing every intermediate number on the heap meanwhile.
+ */
+function primeProcessRange(): void {
+  if (primed) return;
+  primed = true;
+  const m = new Mixer(8000, 700, 6);
+  const x = new Float32Array(23).fill(0.5);
+  const re = new Float64Array(8);
+  const im = new Float64Array(8);
+  for (let k = 0; k < 3; k++) {
+    m.processRange(x, 1, 23, re, im, re, im);
+    m.processRange(x, 0, 7, re, im);
+    m.processRange(x, 2, 3, re, im, re, im);
   }
 }

@@ -381,10 +381,9 @@ export class StreamDecoder {
     const mixer = this.mixer!;
     // One slot at a time, so that a retune by the tone tracker applies from the next slot on.
     const block = mixer.samplesPerFrame * this.framesPerSlot;
+    this.ensureFrameBuffers(block);
     for (let off = 0; off < chunk.length; off += block) {
-      const part = chunk.subarray(off, Math.min(chunk.length, off + block));
-      this.ensureFrameBuffers(part.length);
-      const n = mixer.process(part, this.frameRe, this.frameIm, this.frameGRe, this.frameGIm);
+      const n = mixer.processRange(chunk, off, Math.min(chunk.length, off + block), this.frameRe, this.frameIm, this.frameGRe, this.frameGIm);
       for (let i = 0; i < n; i++) this.frame(this.frameRe[i]!, this.frameIm[i]!, this.frameGRe[i]!, this.frameGIm[i]!);
     }
   }
