@@ -62,6 +62,28 @@ export function collectInputs(args: readonly string[]): string[] {
   return files;
 }
 
+/** Audio per worker when --jobs is not given [bytes]: a worker costs about a second of compiling before it runs at full speed. */
+export const BYTES_PER_DEFAULT_WORKER = 24 * 1024 * 1024;
+
+/**
+ * Workers to start when --jobs is not given: one per CPU, but no more than files, and no more than
+ * one per BYTES_PER_DEFAULT_WORKER of input, since each worker thread first compiles keyform's code
+ * for itself (measured: about 1 s of CPU), which a small folder would not win back.
+ * @example defaultJobs([1e6, 1e6], 2) //=> 1 (two one-minute files: one worker is faster)
+ */
+export function defaultJobs(fileBytes: readonly number[], cpus: number): number {
+  const total = fileBytes.reduce((a, b) => a + b, 0);
+  return Math.max(1, Math.min(cpus, fileBytes.length, Math.floor(total / BYTES_PER_DEFAULT_WORKER)));
+}
+
+function fileSize(path: string): number {
+  try {
+    return statSync(path).size;
+  } catch {
+    return 0; // reported as an error row later
+  }
+}
+
 function csvField(value: unknown): string {
   if (value === null || value === undefined) return '';
   const s = Array.isArray(value) ? value.join(' | ') : String(value);
@@ -227,7 +249,11 @@ export function registerBatch(program: Command, ctx: CommandContext): void {
         'Rows appear as files complete; with --out they are written to OUT.partial and moved to OUT at the end ' +
         '(also after Ctrl-C, which stops the batch and keeps the rows done so far).',
     )
-    .option('-j, --jobs <n>', `worker threads (1–64; default: CPU count, here ${availableParallelism()})`, numberIn('--jobs', 1, 64, { integer: true }))
+    .option(
+      '-j, --jobs <n>',
+      `worker threads (1–64; default: CPU count, here ${availableParallelism()}, but one per ${BYTES_PER_DEFAULT_WORKER / 1024 / 1024} MB of audio at most)`,
+      numberIn('--jobs', 1, 64, { integer: true }),
+    )
     .option('-o, --out <file>', 'write the report to FILE: .csv (one row per file) or .jsonl (one JSON object per line, with warnings)')
     .option('--force', 'replace --out if it exists')
     .option('--json', 'print all rows and the summary as one JSON document on stdout')
@@ -257,7 +283,7 @@ Examples:
 async function runBatch(inputs: string[], o: BatchCliOptions, ctx: CommandContext): Promise<void> {
   const { io } = ctx;
   const files = collectInputs(inputs);
-  const jobs = Math.min(o.jobs ?? availableParallelism(), files.length);
+  const jobs = Math.min(o.jobs ?? defaultJobs(files.map(fileSize), availableParallelism()), files.length);
   const filename = workerPath();
   const writer = o.out ? new ReportWriter(o.out, Boolean(o.force)) : null;
   const { Piscina } = await import('piscina');

@@ -110,20 +110,37 @@ function filterBlock(
   w: { fft: FFT; frame: Float64Array; spec: number[]; time: number[]; gain: Float64Array; w0: number; re: Float32Array; im: Float32Array },
 ): void {
   const { fft, frame, spec, time, gain, w0, re, im } = w;
+  // Each loop in a function of its own (no code after a long loop that the compiler has not seen
+  // run when it optimises the loop mid-way: that would send it back to slow code at every block).
+  copyPadded(samples, start, frame);
+  fft.realTransform(spec, frame);
+  fft.completeSpectrum(spec);
+  applyGain(spec, gain);
+  fft.inverseTransform(time, spec);
+  mixDown(time, s, end, start, w0, re, im);
+}
+
+/** frame[n] = samples[start + n], 0 outside the samples. */
+function copyPadded(samples: Float32Array, start: number, frame: Float64Array): void {
   const N = frame.length;
   const N0 = samples.length;
   for (let n = 0; n < N; n++) {
     const i = start + n;
     frame[n] = i >= 0 && i < N0 ? samples[i]! : 0;
   }
-  fft.realTransform(spec, frame);
-  fft.completeSpectrum(spec);
-  for (let k = 0; k < N; k++) {
+}
+
+/** Multiplies each complex bin k of spec by the real gain[k]. */
+function applyGain(spec: number[], gain: Float64Array): void {
+  for (let k = 0; k < gain.length; k++) {
     const g = gain[k]!;
     spec[2 * k] = spec[2 * k]! * g;
     spec[2 * k + 1] = spec[2 * k + 1]! * g;
   }
-  fft.inverseTransform(time, spec);
+}
+
+/** re/im[i] = time(i − start) · e^(−jω0·i) for i in s…end − 1. */
+function mixDown(time: number[], s: number, end: number, start: number, w0: number, re: Float32Array, im: Float32Array): void {
   for (let i = s; i < end; i++) {
     const m = i - start;
     const zr = time[2 * m]!;

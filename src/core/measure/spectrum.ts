@@ -103,11 +103,13 @@ export function welchSpectrum(samples: Float32Array, sampleRate: number, options
 }
 
 /**
- * Adds |FFT(window · samples[s…s+L))|² (zero outside the signal) to acc. The per-segment work in a
- * function of its own: called many times, it is compiled once and kept, where a loop inside
- * welchSpectrum (called once per recording) would be compiled again for every recording.
+ * Adds |FFT(window · samples[s…s+L))|² (zero outside the signal) to acc (L = window length, acc of
+ * L/2 + 1 bins). The per-segment work in a function of its own: called many times, it is compiled
+ * once and kept, where a loop inside welchSpectrum (called once per recording) would be compiled
+ * again for every recording.
+ * @example addSegment(x, 0, hannWindow(1024), new FFT(1024), new Float64Array(1024), fft.createComplexArray(), acc)
  */
-function addSegment(samples: Float32Array, s: number, w: Float64Array, fft: FFT, frame: Float64Array, out: number[], acc: Float64Array): void {
+export function addSegment(samples: Float32Array, s: number, w: Float64Array, fft: FFT, frame: Float64Array, out: number[], acc: Float64Array): void {
   const L = w.length;
   const N = samples.length;
   for (let n = 0; n < L; n++) {

@@ -186,15 +186,11 @@ function classify(
   if (hint !== undefined) unit = hint;
   else if (dits.length > 0) {
     // The shortest dot periods (dot + element gap) are 2 units whatever the weighting.
-    const periods: number[] = [];
-    let shortest = Infinity;
-    for (let i = 0; i < lens.length && i < gaps.length; i++) {
-      if (isDah[i]) continue;
-      periods.push(lens[i]! + gaps[i]!);
-      shortest = Math.min(shortest, lens[i]! + gaps[i]!);
-    }
+    const periods = dotPeriods(lens, gaps, isDah);
     unit = median(dits);
     if (periods.length > 0) {
+      let shortest = Infinity;
+      for (const p of periods) shortest = Math.min(shortest, p);
       const low: number[] = [];
       for (const p of periods) if (p < 1.45 * shortest) low.push(p);
       const u0 = median(low) / 2;
@@ -206,14 +202,9 @@ function classify(
   const gapClass = new Array<GapClass>(gaps.length).fill('letter');
   for (let iter = 0; iter < 4; iter++) {
     const extra = dits.length > 0 ? typicalOf(dits) - unit : typicalOf(dahs) - 3 * unit;
-    const longer: number[] = [];
-    for (const g of gaps) if (g + extra >= 2 * unit) longer.push(g + extra);
-    const s = splitTwoClasses(longer);
+    const s = splitTwoClasses(shiftedAtLeast(gaps, extra, 2 * unit));
     const boundary = s !== null && s.highMean / s.lowMean >= 1.6 && s.highMean >= 4 * unit ? s.threshold : (wordSplitUnits ?? 5) * unit;
-    for (let i = 0; i < gaps.length; i++) {
-      const c = gaps[i]! + extra;
-      gapClass[i] = c < 2 * unit ? 'element' : c < boundary ? 'letter' : 'word';
-    }
+    classifyGaps(gaps, extra, 2 * unit, boundary, gapClass);
     const el = ofClass(gaps, gapClass, 'element');
     let next: number;
     if (dits.length > 0 && el.length > 0) next = (typicalOf(dits) + typicalOf(el)) / 2;
@@ -469,4 +460,26 @@ function jitterSums(
     dof += resid.length - 1;
   }
   return { ssr, dof };
+}
+
+/** Dot + following gap of every dot that has a gap after it [ms]. */
+function dotPeriods(lens: readonly number[], gaps: readonly number[], isDah: readonly boolean[]): number[] {
+  const periods: number[] = [];
+  for (let i = 0; i < lens.length && i < gaps.length; i++) if (!isDah[i]) periods.push(lens[i]! + gaps[i]!);
+  return periods;
+}
+
+/** g + shift for each gap g with g + shift ≥ limit. */
+function shiftedAtLeast(gaps: readonly number[], shift: number, limit: number): number[] {
+  const out: number[] = [];
+  for (const g of gaps) if (g + shift >= limit) out.push(g + shift);
+  return out;
+}
+
+/** Classes of the gaps, each corrected by `extra`: element below `elementLimit`, letter below `wordBoundary`, else word. */
+function classifyGaps(gaps: readonly number[], extra: number, elementLimit: number, wordBoundary: number, out: GapClass[]): void {
+  for (let i = 0; i < gaps.length; i++) {
+    const c = gaps[i]! + extra;
+    out[i] = c < elementLimit ? 'element' : c < wordBoundary ? 'letter' : 'word';
+  }
 }

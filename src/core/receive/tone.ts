@@ -1,4 +1,5 @@
 import FFT from 'fft.js';
+import { addSegment, hannWindow } from '../measure/spectrum.js';
 
 export interface ToneSearchOptions {
   /** Lowest tone considered [Hz], default 100. */
@@ -40,17 +41,14 @@ export function findTone(samples: Float32Array, sampleRate: number, options: Ton
   while (size > 256 && size > samples.length) size /= 2;
   if (samples.length < 256 || maxHz <= minHz) return { toneHz: 0, prominenceDb: 0, found: false };
   const fft = new FFT(size);
-  const window = new Float64Array(size);
-  for (let i = 0; i < size; i++) window[i] = 0.5 - 0.5 * Math.cos((2 * Math.PI * i) / size);
+  const window = hannWindow(size);
   const frame = new Float64Array(size);
   const out = fft.createComplexArray();
   const power = new Float64Array(size / 2 + 1);
   const hop = size / 2;
   let segments = 0;
   for (let start = 0; start + size <= samples.length; start += hop) {
-    for (let i = 0; i < size; i++) frame[i] = samples[start + i]! * window[i]!;
-    fft.realTransform(out, frame);
-    for (let k = 0; k <= size / 2; k++) power[k] = power[k]! + out[2 * k]! * out[2 * k]! + out[2 * k + 1]! * out[2 * k + 1]!;
+    addSegment(samples, start, window, fft, frame, out, power);
     segments++;
   }
   if (segments === 0) return { toneHz: 0, prominenceDb: 0, found: false };
@@ -59,7 +57,7 @@ export function findTone(samples: Float32Array, sampleRate: number, options: Ton
   const k1 = Math.min(size / 2 - 1, Math.floor(maxHz / binHz));
   let kPeak = k0;
   for (let k = k0; k <= k1; k++) if (power[k]! > power[kPeak]!) kPeak = k;
-  const band = Array.from(power.subarray(k0, k1 + 1)).sort((a, b) => a - b);
+  const band = power.slice(k0, k1 + 1).sort(); // a typed array sorts numerically
   const median = band[band.length >> 1]!;
   const peak = power[kPeak]!;
   if (!(peak > 0)) return { toneHz: 0, prominenceDb: 0, found: false };
