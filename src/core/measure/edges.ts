@@ -225,6 +225,40 @@ export function edgeWarnings(c: EdgeCounts, minMarkMs = 2): string[] {
   return out;
 }
 
+/** env[0], env[stride], env[2·stride], … as a new array (a leaf function: see keyDownRuns). */
+function everyNth(env: Float32Array, stride: number): Float32Array {
+  const out = new Float32Array(Math.ceil(env.length / stride));
+  for (let i = 0, k = 0; i < env.length; i += stride, k++) out[k] = env[i]!;
+  return out;
+}
+
+/**
+ * Key-down runs with hysteresis (on at threshold + hyst, off below threshold − hyst); each run's
+ * recorded boundaries are its 50 % threshold crossings [sample indices, end exclusive]. A leaf
+ * function, so that the sample loop is compiled once and kept from one recording to the next.
+ * @returns The closed runs, and the start of a run still open at the end (or null).
+ */
+function keyDownRuns(env: Float32Array, threshold: number, hyst: number): { runs: Array<[number, number]>; openStart: number | null } {
+  const runs: Array<[number, number]> = [];
+  let down = false;
+  let start = 0;
+  for (let i = 0; i < env.length; i++) {
+    const v = env[i]!;
+    if (!down && v >= threshold + hyst) {
+      down = true;
+      let j = i;
+      while (j > 0 && env[j - 1]! >= threshold) j--;
+      start = j;
+    } else if (down && v < threshold - hyst) {
+      down = false;
+      let j = i;
+      while (j > start && env[j - 1]! < threshold) j--;
+      runs.push([start, j]);
+    }
+  }
+  return { runs, openStart: down ? start : null };
+}
+
 /**
  * Finds the marks in a wide envelope and measures each one's rise and fall (10–90 % of the step from
  * the level before the mark to the mark's settled level), overshoot and plateau noise.
@@ -244,9 +278,7 @@ export function measureEdges(env: Float32Array, sampleRate: number, options: Edg
   const counts: EdgeCounts = { bumps: 0, kept: 0, tooShort: 0, tooNoisy: 0, endsInMark: false, noKeyDown: false };
   // Levels from a decimated sorted copy (bounded cost on long recordings).
   const stride = Math.max(1, Math.floor(N / 200_000));
-  const pick = new Float32Array(Math.ceil(N / stride));
-  for (let i = 0, k = 0; i < N; i += stride, k++) pick[k] = env[i]!;
-  pick.sort(); // typed arrays sort numerically, without a comparator
+  const pick = everyNth(env, stride).sort(); // typed arrays sort numerically, without a comparator
   const onLevel = percentile(pick, 0.95);
   const offLevel = percentile(pick, 0.05);
   const threshold = offLevel + 0.5 * (onLevel - offLevel);
@@ -258,25 +290,8 @@ export function measureEdges(env: Float32Array, sampleRate: number, options: Edg
     return result;
   }
 
-  // Key-down runs with hysteresis; the recorded boundaries are the 50 % threshold crossings.
-  const runs: Array<[number, number]> = [];
-  let down = false;
-  let start = 0;
-  for (let i = 0; i < N; i++) {
-    const v = env[i]!;
-    if (!down && v >= threshold + hyst) {
-      down = true;
-      let j = i;
-      while (j > 0 && env[j - 1]! >= threshold) j--;
-      start = j;
-    } else if (down && v < threshold - hyst) {
-      down = false;
-      let j = i;
-      while (j > start && env[j - 1]! < threshold) j--;
-      runs.push([start, j]);
-    }
-  }
-  counts.endsInMark = down && start >= keepFrom && start < keepTo;
+  const { runs, openStart } = keyDownRuns(env, threshold, hyst);
+  counts.endsInMark = openStart !== null && openStart >= keepFrom && openStart < keepTo;
   const minLen = minMarkMs / msPerSample;
   const kept: Array<[number, number]> = [];
   for (const run of runs) {

@@ -252,12 +252,7 @@ export function measureTiming(timeline: { marks: readonly Interval[] }, options:
   const maxUnits = checkRange('histogram range', options.histogramMaxUnits ?? 10, 2, 200, 'units');
   const warnings: string[] = [];
 
-  const lens = new Array<number>(marks.length);
-  const gaps = new Array<number>(marks.length - 1);
-  for (let i = 0; i < marks.length; i++) {
-    lens[i] = marks[i]![1] - marks[i]![0];
-    if (i > 0) gaps[i - 1] = marks[i]![0] - marks[i - 1]![1];
-  }
+  const { lens, gaps } = lengthsAndGaps(marks);
   const split = options.wordSplitUnits === undefined ? undefined : checkRange('letter/word boundary', options.wordSplitUnits, 2, 1000, 'units');
   const { isDah, gapClass, unitMs: unit } = classify(lens, gaps, hint, split, warnings);
 
@@ -275,8 +270,7 @@ export function measureTiming(timeline: { marks: readonly Interval[] }, options:
 
   const durationMs = marks[marks.length - 1]![1] - marks[0]![0];
   let nominalUnits = 0;
-  for (const d of isDah) nominalUnits += d ? NOMINAL_UNITS.dah : NOMINAL_UNITS.dit;
-  for (const c of gapClass) nominalUnits += NOMINAL_UNITS[c];
+  nominalUnits += nominalUnitsOf(isDah, gapClass);
 
   // Typical length of each class [ms], the "fitted grid" for jitter and word speeds.
   const typical = {
@@ -384,18 +378,11 @@ function fitWordSpeeds(
 ): { factor: Float64Array; shape: ClassLengths } {
   let shape = { ...typical };
   const factor = new Float64Array(words).fill(1);
+  // (The loops over the marks are leaf functions: this one runs once per recording.)
   for (let round = 0; round < 10; round++) {
     const obs = new Float64Array(words);
     const exp = new Float64Array(words);
-    for (let i = 0; i < lens.length; i++) {
-      const w = wordOf[i]!;
-      obs[w] += lens[i]!;
-      exp[w] += isDah[i] ? shape.dah : shape.dit;
-      if (i < gaps.length && gapClass[i] === 'element') {
-        obs[w] += gaps[i]!;
-        exp[w] += shape.element;
-      }
-    }
+    addWordTimes(lens, gaps, isDah, gapClass, wordOf, shape, obs, exp);
     let change = 0;
     for (let w = 0; w < words; w++) {
       const k = obs[w]! / exp[w]!;
@@ -403,15 +390,7 @@ function fitWordSpeeds(
       factor[w] = k;
     }
     if (round > 0 && change < 1e-12) break;
-    // Lengths with each word's factor divided out, by class.
-    const d: number[] = [];
-    const D: number[] = [];
-    const e: number[] = [];
-    for (let i = 0; i < lens.length; i++) {
-      const k = factor[wordOf[i]!]!;
-      (isDah[i] ? D : d).push(lens[i]! / k);
-      if (i < gaps.length && gapClass[i] === 'element') e.push(gaps[i]! / k);
-    }
+    const { d, D, e } = undrifted(lens, gaps, isDah, gapClass, wordOf, factor);
     shape = {
       dit: d.length > 0 ? typicalOf(d) : shape.dit,
       dah: D.length > 0 ? typicalOf(D) : shape.dah,
@@ -419,6 +398,48 @@ function fitWordSpeeds(
     };
   }
   return { factor, shape };
+}
+
+/** Adds each word's observed element-level time (marks and element gaps) to obs, and the same at the class lengths `shape` to exp. */
+function addWordTimes(
+  lens: readonly number[],
+  gaps: readonly number[],
+  isDah: readonly boolean[],
+  gapClass: readonly GapClass[],
+  wordOf: Int32Array,
+  shape: ClassLengths,
+  obs: Float64Array,
+  exp: Float64Array,
+): void {
+  for (let i = 0; i < lens.length; i++) {
+    const w = wordOf[i]!;
+    obs[w] += lens[i]!;
+    exp[w] += isDah[i] ? shape.dah : shape.dit;
+    if (i < gaps.length && gapClass[i] === 'element') {
+      obs[w] += gaps[i]!;
+      exp[w] += shape.element;
+    }
+  }
+}
+
+/** Dot, dash and element-gap lengths with each word's speed factor divided out. */
+function undrifted(
+  lens: readonly number[],
+  gaps: readonly number[],
+  isDah: readonly boolean[],
+  gapClass: readonly GapClass[],
+  wordOf: Int32Array,
+  factor: Float64Array,
+): { d: number[]; D: number[]; e: number[] } {
+  const d: number[] = [];
+  const D: number[] = [];
+  const e: number[] = [];
+  for (let i = 0; i < lens.length; i++) {
+    const k = factor[wordOf[i]!]!;
+    (isDah[i] ? D : d).push(lens[i]! / k);
+    if (i < gaps.length && gapClass[i] === 'element') e.push(gaps[i]! / k);
+  }
+  return { d, D, e };
 }
 
 /** Marks grouped into characters (runs joined by element gaps), as lists of mark indices. */
@@ -446,20 +467,27 @@ function jitterSums(
   let ssr = 0;
   let dof = 0;
   for (const ch of chars) {
-    const resid: number[] = [];
-    let t = 0;
-    for (let k = 0; k < ch.length; k++) {
-      const i = ch[k]!;
-      if (k > 0) t += shape.element * scale[i]!;
-      resid.push(marks[i]![0] - t);
-      t += (isDah[i] ? shape.dah : shape.dit) * scale[i]!;
-      resid.push(marks[i]![1] - t);
-    }
-    const m = mean(resid);
-    for (const r of resid) ssr += (r - m) * (r - m);
-    dof += resid.length - 1;
+    ssr += characterSsr(marks, ch, isDah, shape, scale);
+    dof += 2 * ch.length - 1;
   }
   return { ssr, dof };
+}
+
+/** One character's sum of squared edge residuals, its own offset removed (see jitterSums). */
+function characterSsr(marks: readonly Interval[], ch: readonly number[], isDah: readonly boolean[], shape: ClassLengths, scale: Float64Array): number {
+  const resid: number[] = [];
+  let t = 0;
+  for (let k = 0; k < ch.length; k++) {
+    const i = ch[k]!;
+    if (k > 0) t += shape.element * scale[i]!;
+    resid.push(marks[i]![0] - t);
+    t += (isDah[i] ? shape.dah : shape.dit) * scale[i]!;
+    resid.push(marks[i]![1] - t);
+  }
+  const m = mean(resid);
+  let ssr = 0;
+  for (const r of resid) ssr += (r - m) * (r - m);
+  return ssr;
 }
 
 /** Dot + following gap of every dot that has a gap after it [ms]. */
@@ -482,4 +510,23 @@ function classifyGaps(gaps: readonly number[], extra: number, elementLimit: numb
     const c = gaps[i]! + extra;
     out[i] = c < elementLimit ? 'element' : c < wordBoundary ? 'letter' : 'word';
   }
+}
+
+/** Mark lengths and the gaps between marks [ms]. */
+function lengthsAndGaps(marks: readonly Interval[]): { lens: number[]; gaps: number[] } {
+  const lens = new Array<number>(marks.length);
+  const gaps = new Array<number>(Math.max(0, marks.length - 1));
+  for (let i = 0; i < marks.length; i++) {
+    lens[i] = marks[i]![1] - marks[i]![0];
+    if (i > 0) gaps[i - 1] = marks[i]![0] - marks[i - 1]![1];
+  }
+  return { lens, gaps };
+}
+
+/** Length of the marks and gaps at standard timing [units] (ITU-R M.1677-1 §2). */
+function nominalUnitsOf(isDah: readonly boolean[], gapClass: readonly GapClass[]): number {
+  let units = 0;
+  for (const d of isDah) units += d ? NOMINAL_UNITS.dah : NOMINAL_UNITS.dit;
+  for (const c of gapClass) units += NOMINAL_UNITS[c];
+  return units;
 }

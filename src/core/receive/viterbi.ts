@@ -312,26 +312,8 @@ export class SequenceDecoder {
       }
     }
     // Letter and word gaps: close the best character that ended where the gap starts.
-    const closeWith = (table: DurationTable, prior: number, state: number): number => {
-      const hi = Math.min(table.max, t);
-      let best = NEG;
-      let bestD = 0;
-      for (let d = table.min; d <= hi; d++) {
-        const src = this.bestChar[(t - d) & M]!;
-        if (src <= NEG) continue;
-        const v = src + table.logP[d]!;
-        if (v > best) { best = v; bestD = d; }
-      }
-      if (bestD > 0) {
-        score[base + state] = best + prior;
-        bpDur[base + state] = bestD;
-        bpPrev[base + state] = this.bestCharNode[(t - bestD) & M]!;
-        return 1;
-      }
-      return 0;
-    };
-    if (closeWith(lgap, GAP_PRIOR.letterGap, this.stR)) written[nWritten++] = this.stR;
-    const wordGapWritten = closeWith(wgap, GAP_PRIOR.wordGap, this.stS);
+    if (this.closeGap(lgap, GAP_PRIOR.letterGap, this.stR, t, base)) written[nWritten++] = this.stR;
+    const wordGapWritten = this.closeGap(wgap, GAP_PRIOR.wordGap, this.stS, t, base);
     // Idle: a word gap may go on for any length.
     const idle = score[pi * S + this.stS]!;
     if (idle > score[base + this.stS]!) {
@@ -392,6 +374,29 @@ export class SequenceDecoder {
         for (const ring of this.longSrcScore) for (let k = 0; k < H; k++) if (ring[k]! > NEG) ring[k] = ring[k]! - top;
       }
     }
+  }
+
+  /**
+   * A letter or word gap ending at slot t (its row starts at `base`): closes the best character
+   * that ended where the gap starts. A method rather than a callback made in step, which would be
+   * a new function object at every slot. Returns 1 when the state got a score.
+   */
+  private closeGap(table: DurationTable, prior: number, state: number, t: number, base: number): number {
+    const M = this.mask;
+    const hi = Math.min(table.max, t);
+    let best = NEG;
+    let bestD = 0;
+    for (let d = table.min; d <= hi; d++) {
+      const src = this.bestChar[(t - d) & M]!;
+      if (src <= NEG) continue;
+      const v = src + table.logP[d]!;
+      if (v > best) { best = v; bestD = d; }
+    }
+    if (bestD === 0) return 0;
+    this.score[base + state] = best + prior;
+    this.bpDur[base + state] = bestD;
+    this.bpPrev[base + state] = this.bestCharNode[(t - bestD) & M]!;
+    return 1;
   }
 
   /** Score of the best path so far (log-likelihood ratio against noise plus log priors). */
