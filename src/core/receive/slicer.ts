@@ -16,15 +16,6 @@ export interface SlicerOptions {
   framesPerSlot: number;
 }
 
-/** Output of one slicer step. */
-export interface SliceStep {
-  on: boolean;
-  /** Matched-filter amplitude, normalised to one slot's noise scale. */
-  envelope: number;
-  /** Decision threshold on the same scale. */
-  threshold: number;
-}
-
 /** Highest SNR of one mixer frame the levels may claim (20 dB), so a noiseless file does not divide by zero. */
 const MAX_FRAME_SNR = 100;
 /** Slots above this many times the noise level do not update it. */
@@ -78,8 +69,16 @@ export class LevelSlicer {
     return Math.max(this.noise, this.signalPow / this.maxSlotSnr, 1e-30);
   }
 
-  /** Takes one slot value; returns the decision for the window ending at it. */
-  step(zr: number, zi: number): SliceStep {
+  /** Matched-filter amplitude at the last step, normalised to one slot's noise scale. */
+  envelope = 0;
+  /** Decision threshold at the last step, on the same scale. */
+  threshold = 0;
+
+  /**
+   * Takes one slot value; returns the key-down decision for the window ending at it (the envelope
+   * and threshold behind it are left in `envelope` and `threshold`: no object per slot).
+   */
+  step(zr: number, zi: number): boolean {
     const w = this.w;
     const oldRe = this.ringRe[this.pos]!;
     const oldIm = this.ringIm[this.pos]!;
@@ -133,6 +132,8 @@ export class LevelSlicer {
       // Through a fade no mark passes the threshold: let the signal level sink toward the noise.
       if (this.offSlots > 8 * w) this.peakPow -= this.alphaDecay * (this.peakPow - noise);
     }
-    return { on: this.on, envelope: amp, threshold };
+    this.envelope = amp;
+    this.threshold = threshold;
+    return this.on;
   }
 }

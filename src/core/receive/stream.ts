@@ -414,7 +414,7 @@ export class StreamDecoder {
   private slot(zr: number, zi: number): void {
     const decoder = this.decoder!;
     const slicer = this.slicer!;
-    const cut = slicer.step(zr, zi);
+    const on = slicer.step(zr, zi);
     const A2 = slicer.signalPow;
     const N = slicer.noisePow;
     const A = Math.sqrt(A2);
@@ -422,8 +422,8 @@ export class StreamDecoder {
     const ti = decoder.t % decoder.historySlots;
     this.zRe[ti] = zr;
     this.zIm[ti] = zi;
-    this.trackTone(zr, zi, cut.on);
-    if (this.options.keepEnvelope) this.keepEnvelopePoint(cut.envelope, cut.threshold);
+    this.trackTone(zr, zi, on);
+    if (this.options.keepEnvelope) this.keepEnvelopePoint(slicer.envelope, slicer.threshold);
     if (decoder.t % COMMIT_EVERY === 0) this.commit(false);
   }
 
