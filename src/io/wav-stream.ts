@@ -481,7 +481,8 @@ function fileError(path: string, err: unknown): InputError {
 
 /**
  * Reads a file in blocks. The yielded view is reused: consume it before pulling the next one.
- * File-system failures become one-line InputErrors naming the file.
+ * The next block is already being read (by the thread pool) while the caller works on this one,
+ * so reading and decoding overlap. File-system failures become one-line InputErrors naming the file.
  */
 export async function* readFileBlocks(path: string, blockBytes = READ_BLOCK_BYTES, startByte = 0): AsyncGenerator<Uint8Array> {
   const { open } = await import('node:fs/promises');
@@ -491,23 +492,39 @@ export async function* readFileBlocks(path: string, blockBytes = READ_BLOCK_BYTE
   } catch (err) {
     throw fileError(path, err);
   }
+  let pending: Promise<number> | null = null;
   try {
     const st = await handle.stat();
     if (st.isDirectory()) throw new InputError(`${path}: is a folder, not a file`);
-    const buf = new Uint8Array(blockBytes);
+    // Two buffers: one being read into while the other is with the caller.
+    const bufs = [new Uint8Array(blockBytes), new Uint8Array(blockBytes)];
     let position = startByte;
-    for (;;) {
-      let n: number;
-      try {
-        ({ bytesRead: n } = await handle.read(buf, 0, blockBytes, position));
-      } catch (err) {
-        throw fileError(path, err);
-      }
+    const file = handle;
+    const readInto = (buf: Uint8Array, at: number): Promise<number> =>
+      file.read(buf, 0, blockBytes, at).then(
+        (r) => r.bytesRead,
+        (err: unknown) => {
+          throw fileError(path, err);
+        },
+      );
+    let which = 0;
+    pending = readInto(bufs[0]!, position);
+    while (pending) {
+      const n = await pending;
+      pending = null;
       if (n === 0) return;
       position += n;
-      yield buf.subarray(0, n);
+      const current = bufs[which]!;
+      which ^= 1;
+      // Start the next read before handing this block out (a short read means the end is near:
+      // the next read returns 0 then).
+      const next = readInto(bufs[which]!, position);
+      next.catch(() => {}); // a failure is reported when the next block is pulled; never unhandled
+      pending = next;
+      yield current.subarray(0, n);
     }
   } finally {
+    await pending?.catch(() => {}); // a read still in flight (the caller stopped early) ends first
     await handle.close();
   }
 }
