@@ -73,15 +73,7 @@ export function complexBaseband(samples: Float32Array, sampleRate: number, optio
   const guard = nextPow2(Math.ceil((4 * sampleRate) / taperHz));
   const N = Math.max(1 << 15, 4 * guard);
   const step = N - 2 * guard;
-  const gain = new Float64Array(N);
-  for (let k = 1; k < N / 2; k++) {
-    const f = (k * sampleRate) / N;
-    let g = 0;
-    if (f >= lowHz && f <= highHz) g = 1;
-    else if (f < lowHz && f > lowHz - taperHz) g = 0.5 * (1 + Math.cos((Math.PI * (lowHz - f)) / taperHz));
-    else if (f > highHz && f < highHz + taperHz) g = 0.5 * (1 + Math.cos((Math.PI * (f - highHz)) / taperHz));
-    gain[k] = 2 * g; // analytic signal: positive frequencies doubled, negative ones removed
-  }
+  const gain = bandGain(N, sampleRate, lowHz, highHz, taperHz);
   const fft = new FFT(N);
   const frame = new Float64Array(N);
   const spec = fft.createComplexArray();
@@ -95,6 +87,23 @@ export function complexBaseband(samples: Float32Array, sampleRate: number, optio
     options.onProgress?.(done / blocks);
   }
   return result;
+}
+
+/**
+ * Gain per FFT bin of complexBaseband's filter: 2 in lowHz…highHz (analytic signal: positive
+ * frequencies doubled, negative ones removed), raised-cosine tapers of `taperHz` outside, 0 elsewhere.
+ */
+function bandGain(N: number, sampleRate: number, lowHz: number, highHz: number, taperHz: number): Float64Array {
+  const gain = new Float64Array(N);
+  for (let k = 1; k < N / 2; k++) {
+    const f = (k * sampleRate) / N;
+    let g = 0;
+    if (f >= lowHz && f <= highHz) g = 1;
+    else if (f < lowHz && f > lowHz - taperHz) g = 0.5 * (1 + Math.cos((Math.PI * (lowHz - f)) / taperHz));
+    else if (f > highHz && f < highHz + taperHz) g = 0.5 * (1 + Math.cos((Math.PI * (f - highHz)) / taperHz));
+    gain[k] = 2 * g;
+  }
+  return gain;
 }
 
 /**

@@ -3,7 +3,7 @@
  * transmitter rather than the recording's noise.
  */
 import FFT from 'fft.js';
-import { hannWindow, nearestPowerOfTwo } from './spectrum.js';
+import { addSegment, hannWindow, nearestPowerOfTwo } from './spectrum.js';
 
 export interface NoiseDensity {
   /** Segment length used [samples]. */
@@ -39,9 +39,7 @@ export function noiseDensityFromGaps(
   let segments = 0;
   for (const [a, b] of quiet) {
     for (let s = Math.max(0, a); s + L <= Math.min(b, samples.length); s += hop) {
-      for (let n = 0; n < L; n++) frame[n] = samples[s + n]! * w[n]!;
-      fft.realTransform(out, frame);
-      for (let k = 0; k <= L / 2; k++) acc[k] = acc[k]! + out[2 * k]! * out[2 * k]! + out[2 * k + 1]! * out[2 * k + 1]!;
+      addSegment(samples, s, w, fft, frame, out, acc);
       segments++;
     }
   }

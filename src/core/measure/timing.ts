@@ -383,12 +383,7 @@ function fitWordSpeeds(
     const obs = new Float64Array(words);
     const exp = new Float64Array(words);
     addWordTimes(lens, gaps, isDah, gapClass, wordOf, shape, obs, exp);
-    let change = 0;
-    for (let w = 0; w < words; w++) {
-      const k = obs[w]! / exp[w]!;
-      change = Math.max(change, Math.abs(k - factor[w]!));
-      factor[w] = k;
-    }
+    const change = updateFactors(obs, exp, factor);
     if (round > 0 && change < 1e-12) break;
     const { d, D, e } = undrifted(lens, gaps, isDah, gapClass, wordOf, factor);
     shape = {
@@ -420,6 +415,17 @@ function addWordTimes(
       exp[w] += shape.element;
     }
   }
+}
+
+/** factor[w] = obs[w] / exp[w]; returns the largest change. */
+function updateFactors(obs: Float64Array, exp: Float64Array, factor: Float64Array): number {
+  let change = 0;
+  for (let w = 0; w < factor.length; w++) {
+    const k = obs[w]! / exp[w]!;
+    change = Math.max(change, Math.abs(k - factor[w]!));
+    factor[w] = k;
+  }
+  return change;
 }
 
 /** Dot, dash and element-gap lengths with each word's speed factor divided out. */

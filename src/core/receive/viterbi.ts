@@ -364,16 +364,7 @@ export class SequenceDecoder {
     this.bestCharNode[ti] = bcNode;
     // Keep numbers small: shift every live score by the best one now and then (float64 keeps
     // ample precision in between).
-    if ((t & 0xffff) === 0) {
-      const H = this.historySlots;
-      let top = NEG;
-      for (let s = 0; s < S; s++) top = Math.max(top, score[base + s]!);
-      if (top > NEG) {
-        for (let k = 0; k < H * S; k++) if (score[k]! > NEG) score[k] = score[k]! - top;
-        for (let k = 0; k < H; k++) if (this.bestChar[k]! > NEG) this.bestChar[k] = this.bestChar[k]! - top;
-        for (const ring of this.longSrcScore) for (let k = 0; k < H; k++) if (ring[k]! > NEG) ring[k] = ring[k]! - top;
-      }
-    }
+    if ((t & 0xffff) === 0) this.rescale(base);
   }
 
   /**
@@ -397,6 +388,19 @@ export class SequenceDecoder {
     this.bpDur[base + state] = bestD;
     this.bpPrev[base + state] = this.bestCharNode[(t - bestD) & M]!;
     return 1;
+  }
+
+  /** Shifts every live score by the best one at the current slot (row `base`). */
+  private rescale(base: number): void {
+    const H = this.historySlots;
+    const S = this.nStates;
+    const score = this.score;
+    let top = NEG;
+    for (let s = 0; s < S; s++) top = Math.max(top, score[base + s]!);
+    if (top <= NEG) return;
+    for (let k = 0; k < H * S; k++) if (score[k]! > NEG) score[k] = score[k]! - top;
+    for (let k = 0; k < H; k++) if (this.bestChar[k]! > NEG) this.bestChar[k] = this.bestChar[k]! - top;
+    for (const ring of this.longSrcScore) for (let k = 0; k < H; k++) if (ring[k]! > NEG) ring[k] = ring[k]! - top;
   }
 
   /** Score of the best path so far (log-likelihood ratio against noise plus log priors). */
