@@ -299,65 +299,83 @@ export function measureEdges(env: Float32Array, sampleRate: number, options: Edg
     else if (run[0] >= keepFrom && run[0] < keepTo) counts.bumps++;
   }
 
+  const levels = { offLevel, msPerSample, sampleRate };
   for (let m = 0; m < kept.length; m++) {
     const [a, b] = kept[m]!;
     if (!(a >= keepFrom && a < keepTo)) continue;
-    const prevEnd = m > 0 ? kept[m - 1]![1] : 0;
-    const nextStart = m + 1 < kept.length ? kept[m + 1]![0] : N;
-    const D = b - a;
-    const settled = medianOf(env, a + Math.floor(0.25 * D), b - Math.floor(0.25 * D));
-    const gapBefore = a - prevEnd;
-    const gapAfter = nextStart - b;
-    const baseBefore = m === 0 && gapBefore < 4 ? offLevel : medianOf(env, prevEnd + Math.floor(0.25 * gapBefore), a - Math.floor(0.25 * gapBefore));
-    const baseAfter = gapAfter < 4 ? offLevel : medianOf(env, b + Math.floor(0.25 * gapAfter), nextStart - Math.floor(0.25 * gapAfter));
-    const span = settled - baseBefore;
-    const plateauNoise = span > 0 ? residualStdOf(env, a + Math.floor(0.25 * D), b - Math.floor(0.25 * D), Math.round(sampleRate / 1000)) / span : Infinity;
-    // Peak of a 0.5 ms running mean, so that noise on the plateau does not read as overshoot.
-    const w = Math.max(1, Math.round(sampleRate / 2000));
-    let peak = 0;
-    let run = 0;
-    for (let i = a; i < a + D / 2; i++) {
-      run += env[i]!;
-      if (i - a >= w) run -= env[i - w]!;
-      if (i - a >= w - 1) peak = Math.max(peak, run / w);
-    }
-    const mark: MarkShape = {
-      startMs: a * msPerSample,
-      endMs: b * msPerSample,
-      settledLevel: settled,
-      baseLevel: baseBefore,
-      plateauNoise,
-      // An excess within 3 σ of the plateau's spread is not told from the noise: reported as 0.
-      overshootPct: settled > 0 && peak - settled > 3 * stdOf(env, a + Math.floor(0.25 * D), b - Math.floor(0.25 * D)) ? (peak / settled - 1) * 100 : 0,
-      rise: null,
-      fall: null,
-      problem: null,
-    };
-    result.marks.push(mark);
-    if (!(span > 0) || plateauNoise > 0.05) {
-      mark.problem = 'too noisy';
-      counts.tooNoisy++;
-      continue;
-    }
-    const riseEdge = measureEdge(env, a, baseBefore, settled, true, Math.max(0, prevEnd + Math.floor(gapBefore / 2)), a + Math.floor(D / 2), msPerSample);
-    const fallEdge = measureEdge(env, b - 1, baseAfter, settled, false, b - Math.ceil(D / 2), Math.min(N - 1, b + Math.floor(gapAfter / 2)), msPerSample);
-    // A mark has settled when its rise has reached 90 % before the middle part used for the level.
-    const settledOk =
-      riseEdge !== null &&
-      fallEdge !== null &&
-      riseEdge.at50Ms + (riseEdge.levelTimesMs.p95 - riseEdge.levelTimesMs.p50) <= (a + 0.25 * D) * msPerSample &&
-      fallEdge.at50Ms - (fallEdge.levelTimesMs.p95 - fallEdge.levelTimesMs.p50) >= (b - 0.25 * D) * msPerSample;
-    if (!settledOk) {
-      mark.problem = 'too short to settle';
-      counts.tooShort++;
-      continue;
-    }
-    mark.rise = riseEdge;
-    mark.fall = fallEdge;
+    result.marks.push(measureMark(env, kept, m, levels, counts));
   }
   counts.kept = result.marks.length;
   warnings.push(...edgeWarnings(counts, minMarkMs));
   return result;
+}
+
+/**
+ * Levels, overshoot and edges of kept run m (a function of its own, called once per mark, so that
+ * its compiled code is kept from one recording to the next); counts its problems.
+ */
+function measureMark(
+  env: Float32Array,
+  kept: ReadonlyArray<readonly [number, number]>,
+  m: number,
+  levels: { offLevel: number; msPerSample: number; sampleRate: number },
+  counts: EdgeCounts,
+): MarkShape {
+  const { offLevel, msPerSample, sampleRate } = levels;
+  const N = env.length;
+  const [a, b] = kept[m]!;
+  const prevEnd = m > 0 ? kept[m - 1]![1] : 0;
+  const nextStart = m + 1 < kept.length ? kept[m + 1]![0] : N;
+  const D = b - a;
+  const settled = medianOf(env, a + Math.floor(0.25 * D), b - Math.floor(0.25 * D));
+  const gapBefore = a - prevEnd;
+  const gapAfter = nextStart - b;
+  const baseBefore = m === 0 && gapBefore < 4 ? offLevel : medianOf(env, prevEnd + Math.floor(0.25 * gapBefore), a - Math.floor(0.25 * gapBefore));
+  const baseAfter = gapAfter < 4 ? offLevel : medianOf(env, b + Math.floor(0.25 * gapAfter), nextStart - Math.floor(0.25 * gapAfter));
+  const span = settled - baseBefore;
+  const plateauNoise = span > 0 ? residualStdOf(env, a + Math.floor(0.25 * D), b - Math.floor(0.25 * D), Math.round(sampleRate / 1000)) / span : Infinity;
+  // Peak of a 0.5 ms running mean, so that noise on the plateau does not read as overshoot.
+  const w = Math.max(1, Math.round(sampleRate / 2000));
+  let peak = 0;
+  let run = 0;
+  for (let i = a; i < a + D / 2; i++) {
+    run += env[i]!;
+    if (i - a >= w) run -= env[i - w]!;
+    if (i - a >= w - 1) peak = Math.max(peak, run / w);
+  }
+  const mark: MarkShape = {
+    startMs: a * msPerSample,
+    endMs: b * msPerSample,
+    settledLevel: settled,
+    baseLevel: baseBefore,
+    plateauNoise,
+    // An excess within 3 σ of the plateau's spread is not told from the noise: reported as 0.
+    overshootPct: settled > 0 && peak - settled > 3 * stdOf(env, a + Math.floor(0.25 * D), b - Math.floor(0.25 * D)) ? (peak / settled - 1) * 100 : 0,
+    rise: null,
+    fall: null,
+    problem: null,
+  };
+  if (!(span > 0) || plateauNoise > 0.05) {
+    mark.problem = 'too noisy';
+    counts.tooNoisy++;
+    return mark;
+  }
+  const riseEdge = measureEdge(env, a, baseBefore, settled, true, Math.max(0, prevEnd + Math.floor(gapBefore / 2)), a + Math.floor(D / 2), msPerSample);
+  const fallEdge = measureEdge(env, b - 1, baseAfter, settled, false, b - Math.ceil(D / 2), Math.min(N - 1, b + Math.floor(gapAfter / 2)), msPerSample);
+  // A mark has settled when its rise has reached 90 % before the middle part used for the level.
+  const settledOk =
+    riseEdge !== null &&
+    fallEdge !== null &&
+    riseEdge.at50Ms + (riseEdge.levelTimesMs.p95 - riseEdge.levelTimesMs.p50) <= (a + 0.25 * D) * msPerSample &&
+    fallEdge.at50Ms - (fallEdge.levelTimesMs.p95 - fallEdge.levelTimesMs.p50) >= (b - 0.25 * D) * msPerSample;
+  if (!settledOk) {
+    mark.problem = 'too short to settle';
+    counts.tooShort++;
+    return mark;
+  }
+  mark.rise = riseEdge;
+  mark.fall = fallEdge;
+  return mark;
 }
 
 export interface EdgeTraces {
