@@ -283,7 +283,11 @@ Examples:
 async function runBatch(inputs: string[], o: BatchCliOptions, ctx: CommandContext): Promise<void> {
   const { io } = ctx;
   const files = collectInputs(inputs);
-  const jobs = Math.min(o.jobs ?? defaultJobs(files.map(fileSize), availableParallelism()), files.length);
+  const sizes = files.map(fileSize);
+  const jobs = Math.min(o.jobs ?? defaultJobs(sizes, availableParallelism()), files.length);
+  // Several workers: the largest files first, so that the last file to finish is a short one and
+  // no worker waits long for another at the end (one worker keeps the folder's order).
+  const queue = jobs > 1 ? files.map((f, i) => ({ f, size: sizes[i]! })).sort((a, b) => b.size - a.size).map((x) => x.f) : files;
   const filename = workerPath();
   const writer = o.out ? new ReportWriter(o.out, Boolean(o.force)) : null;
   const { Piscina } = await import('piscina');
@@ -331,8 +335,8 @@ async function runBatch(inputs: string[], o: BatchCliOptions, ctx: CommandContex
     // At most `jobs` files in flight: a file's time limit starts when it starts, and Ctrl-C has no queue to drain.
     let next = 0;
     const lane = async (): Promise<void> => {
-      while (next < files.length && !interrupted) {
-        const path = files[next++]!;
+      while (next < queue.length && !interrupted) {
+        const path = queue[next++]!;
         const limit = o.timeout ? AbortSignal.timeout(o.timeout * 1000) : null;
         const signal = limit ? AbortSignal.any([abort.signal, limit]) : abort.signal;
         try {
