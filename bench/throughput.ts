@@ -4,7 +4,7 @@
  *
  *   npm run bench:throughput                      one hour at 48 kHz and at 8 kHz (the issue's case)
  *   npx tsx bench/throughput.ts --minutes 10      shorter, for a quick look
- *   options: --minutes M  --repeats R  --batch 6x10,6x60 (folders of N files × M minutes)  --batch-repeats R  --dir DIR  --keep
+ *   options: --minutes M  --repeats R  --batch 6x10,6x60,12x60 (folders of N files × M minutes)  --batch-repeats R  --dir DIR  --keep
  *
  * Test audio (deterministic, seeded): traffic of 20–25 WPM between invented stations, 5 ms raised-cosine
  * edges, 700 Hz tone, white Gaussian noise at +5 dB SNR (key-down carrier power over noise power in
@@ -13,7 +13,7 @@
  * Each measurement runs in a child process so its peak resident memory (process.resourceUsage().maxRSS)
  * is its own: "read" = read the file through the streaming path and convert to float (the floor),
  * "decode" = the same plus the streaming receiver. Batch speed-up runs the built CLI (dist/) with
- * --jobs 1 and --jobs 2 over the same files, for a folder of short files and one of long ones: each
+ * --jobs 1 and --jobs 2 over the same files, for a folder of short files and two of long ones: each
  * worker thread compiles the code for itself (the engine's optimising compiler, on background
  * threads) before it runs at full speed, a cost per worker that a short batch does not hide.
  */
@@ -177,7 +177,7 @@ async function controlSpeedup(tasks = 4): Promise<{ oneS: number; twoS: number }
 
 // ---------------------------------------------------------------- main
 const minutes = arg('--minutes', 60);
-const batchShapes = (process.argv.includes('--batch') ? process.argv[process.argv.indexOf('--batch') + 1]! : '6x10,6x60').split(',').map((spec) => {
+const batchShapes = (process.argv.includes('--batch') ? process.argv[process.argv.indexOf('--batch') + 1]! : '6x10,6x60,12x60').split(',').map((spec) => {
   const m = /^(\d+)x(\d+(?:\.\d+)?)$/.exec(spec.trim());
   if (!m) throw new Error(`--batch: expected N×M like 6x10 (got ${spec})`);
   return { files: Number(m[1]), minutes: Number(m[2]) };
