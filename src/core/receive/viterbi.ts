@@ -68,10 +68,17 @@ interface DurationTable {
   logP: Float64Array;
 }
 
-function durationTable(mean: number, spread: number, cap: number): DurationTable {
+/**
+ * Log-normal duration prior around `mean` [slots] with log-scale spread `spread`, from 2.5 spreads
+ * below to 2.5 above (at most `cap`), normalised over the whole slots it covers. Written into
+ * `into` when given (its logP must hold cap + 1 entries): the decoder refreshes its tables at every
+ * commit, and reuses their arrays.
+ */
+function durationTable(mean: number, spread: number, cap: number, into?: DurationTable): DurationTable {
   const min = Math.max(1, Math.floor(mean * Math.exp(-2.5 * spread)));
   const max = Math.max(min, Math.min(cap, Math.ceil(mean * Math.exp(2.5 * spread))));
-  const logP = new Float64Array(max + 1).fill(NEG);
+  const logP = into ? into.logP : new Float64Array(max + 1);
+  logP.fill(NEG, 0, min);
   const k = 1 / (2 * spread * spread);
   const lnMean = Math.log(mean);
   let total = 0;
@@ -82,7 +89,14 @@ function durationTable(mean: number, spread: number, cap: number): DurationTable
   }
   const norm = Math.log(total);
   for (let d = min; d <= max; d++) logP[d] = logP[d]! - norm;
-  return { min, max, logP };
+  if (!into) return { min, max, logP };
+  into.min = min;
+  into.max = max;
+  return into;
+}
+
+function emptyTable(cap: number): DurationTable {
+  return { min: 1, max: 0, logP: new Float64Array(cap + 1) };
 }
 
 /**
@@ -128,7 +142,8 @@ export class SequenceDecoder {
   private readonly longMask: Uint8Array;
   private blockSlots = 4;
   private minWeakSlots = 3;
-  private tables!: { dit: DurationTable; dah: DurationTable; egap: DurationTable; lgap: DurationTable; wgap: DurationTable };
+  /** Duration priors [slots], refreshed in place by setModel. */
+  private readonly tables: { dit: DurationTable; dah: DurationTable; egap: DurationTable; lgap: DurationTable; wgap: DurationTable };
   private model!: DurationModel;
   /** Index of the last slot processed (slot 0 is the start, before any data). */
   t = 0;
@@ -175,6 +190,8 @@ export class SequenceDecoder {
     this.lastAlive = new Int32Array(this.nStates).fill(-1_000_000);
     this.lastAlive[this.stS] = 0;
     this.score[this.stS] = 0; // slot 0: idle
+    const cap = Math.floor(H / 4);
+    this.tables = { dit: emptyTable(cap), dah: emptyTable(cap), egap: emptyTable(cap), lgap: emptyTable(cap), wgap: emptyTable(cap) };
     this.setModel(model);
   }
 
@@ -190,13 +207,12 @@ export class SequenceDecoder {
     this.minWeakSlots = Math.max(2, Math.round(model.dit));
     const cap = Math.floor(this.historySlots / 4);
     const spread = model.spread ?? SPREAD;
-    this.tables = {
-      dit: durationTable(model.dit, spread.dit, cap),
-      dah: durationTable(model.dah, spread.dah, cap),
-      egap: durationTable(model.elementGap, spread.elementGap, cap),
-      lgap: durationTable(model.letterGap, spread.letterGap, cap),
-      wgap: durationTable(model.wordGap, SPREAD.wordGap, cap),
-    };
+    const t = this.tables;
+    durationTable(model.dit, spread.dit, cap, t.dit);
+    durationTable(model.dah, spread.dah, cap, t.dah);
+    durationTable(model.elementGap, spread.elementGap, cap, t.egap);
+    durationTable(model.letterGap, spread.letterGap, cap, t.lgap);
+    durationTable(model.wordGap, SPREAD.wordGap, cap, t.wgap);
   }
 
   /**
@@ -483,10 +499,11 @@ export class SequenceDecoder {
   }
 
   /**
-   * The best path's segments that end after slot `sinceSlot`, oldest first, traced back from the
-   * best state at the current slot. `final` prefers states where a message may end.
+   * The best path's segments that end after slot `sinceSlot` (and, when given, no later than
+   * `endLimit`: the recent ones, not yet final, are walked over without making objects for them),
+   * oldest first, traced back from the best state at the current slot.
    */
-  traceback(sinceSlot: number): Segment[] {
+  traceback(sinceSlot: number, endLimit = Infinity): Segment[] {
     const H = this.historySlots;
     const S = this.nStates;
     const n = this.n;
@@ -511,7 +528,7 @@ export class SequenceDecoder {
       else if (state === this.stR) { kind = 'letter-gap'; node = prev; }
       else if (prev === this.stS && d === 1) { kind = 'idle'; node = -1; }
       else { kind = 'word-gap'; node = prev; }
-      out.push({ kind, startSlot: tau - d, endSlot: tau, node });
+      if (tau <= endLimit) out.push({ kind, startSlot: tau - d, endSlot: tau, node });
       tau -= d;
       state = prev;
     }
