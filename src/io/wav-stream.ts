@@ -193,7 +193,10 @@ export class PcmDeinterleaver {
             for (let i = 0, k = c; i < frames; i++, k += nch) {
               const v = f[k]!;
               if (v - v === 0) o[i] = v;
-              else bad++;
+              else {
+                o[i] = 0; // written, not skipped: with reused arrays the slot may hold an old sample
+                bad++;
+              }
             }
           }
         } else {
@@ -203,7 +206,10 @@ export class PcmDeinterleaver {
             for (let i = 0, k = 4 * c; i < frames; i++, k += 4 * nch) {
               const v = view.getFloat32(k, true);
               if (v - v === 0) o[i] = v;
-              else bad++;
+              else {
+                o[i] = 0; // written, not skipped: with reused arrays the slot may hold an old sample
+                bad++;
+              }
             }
           }
         }
