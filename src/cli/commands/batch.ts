@@ -251,7 +251,7 @@ export function registerBatch(program: Command, ctx: CommandContext): void {
     )
     .option(
       '-j, --jobs <n>',
-      `worker threads (1–64; default: CPU count, here ${availableParallelism()}, but one per ${BYTES_PER_DEFAULT_WORKER / 1024 / 1024} MB of audio at most)`,
+      `worker threads (1–64; default: CPU count, here ${availableParallelism()}, but one per ${BYTES_PER_DEFAULT_WORKER / 1024 / 1024} MiB of audio at most)`,
       numberIn('--jobs', 1, 64, { integer: true }),
     )
     .option('-o, --out <file>', 'write the report to FILE: .csv (one row per file) or .jsonl (one JSON object per line, with warnings)')
