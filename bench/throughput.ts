@@ -4,7 +4,7 @@
  *
  *   npm run bench:throughput                      one hour at 48 kHz and at 8 kHz (the issue's case)
  *   npx tsx bench/throughput.ts --minutes 10      shorter, for a quick look
- *   options: --minutes M  --repeats R  --batch 6x10,6x60,12x60 (folders of N files × M minutes)  --batch-repeats R  --dir DIR  --keep
+ *   options: --minutes M  --repeats R  --batch 6x10,6x60,12x60 (folders of N files × M minutes; 6x10@48 for 48 kHz)  --batch-repeats R  --dir DIR  --keep
  *
  * Test audio (deterministic, seeded): traffic of 20–25 WPM between invented stations, 5 ms raised-cosine
  * edges, 700 Hz tone, white Gaussian noise at +5 dB SNR (key-down carrier power over noise power in
@@ -178,9 +178,9 @@ async function controlSpeedup(tasks = 4): Promise<{ oneS: number; twoS: number }
 // ---------------------------------------------------------------- main
 const minutes = arg('--minutes', 60);
 const batchShapes = (process.argv.includes('--batch') ? process.argv[process.argv.indexOf('--batch') + 1]! : '6x10,6x60,12x60').split(',').map((spec) => {
-  const m = /^(\d+)x(\d+(?:\.\d+)?)$/.exec(spec.trim());
-  if (!m) throw new Error(`--batch: expected N×M like 6x10 (got ${spec})`);
-  return { files: Number(m[1]), minutes: Number(m[2]) };
+  const m = /^(\d+)x(\d+(?:\.\d+)?)(?:@(8|16|44\.1|48))?$/.exec(spec.trim());
+  if (!m) throw new Error(`--batch: expected N×M[@kHz] like 6x10 or 6x10@48 (got ${spec})`);
+  return { files: Number(m[1]), minutes: Number(m[2]), sampleRate: Math.round(Number(m[3] ?? 8) * 1000) };
 });
 const dir = process.argv.includes('--dir') ? process.argv[process.argv.indexOf('--dir') + 1]! : join(tmpdir(), 'keyform-throughput');
 mkdirSync(dir, { recursive: true });
@@ -247,12 +247,12 @@ say('');
 if (!existsSync(bin) || !existsSync(fileURLToPath(new URL('../dist/cli/batch-worker.js', import.meta.url)))) {
   say('batch: dist/ is not built (npm run build): skipped');
 } else {
-  for (const { files: batchFiles, minutes: batchMinutes } of batchShapes) {
-    const batchDir = join(dir, `batch-${batchFiles}x${batchMinutes}min`);
+  for (const { files: batchFiles, minutes: batchMinutes, sampleRate: batchRate } of batchShapes) {
+    const batchDir = join(dir, `batch-${batchFiles}x${batchMinutes}min${batchRate === 8000 ? '' : `-${batchRate / 1000}k`}`);
     mkdirSync(batchDir, { recursive: true });
     for (let i = 0; i < batchFiles; i++) {
       const p = join(batchDir, `q-traffic-${String(i + 1).padStart(2, '0')}.wav`);
-      if (!existsSync(p)) generate(p, 8000, batchMinutes * 60, SEED + 1 + i);
+      if (!existsSync(p)) generate(p, batchRate, batchMinutes * 60, SEED + 1 + i);
     }
     // Each round: the control (what the machine can give right now), then 1 worker, then 2 workers.
     // On a shared machine the rounds differ; the control beside each shows why.
@@ -264,7 +264,7 @@ if (!existsSync(bin) || !existsSync(fileURLToPath(new URL('../dist/cli/batch-wor
       const two = timeCli(['batch', batchDir, '--jobs', '2', '--json']);
       rounds.push({ one, two, control: c.oneS / c.twoS });
     }
-    say(`Batch: ${batchFiles} files × ${batchMinutes} min at 8 kHz (decode + timing + shape per file), built CLI, ${repeats} rounds`);
+    say(`Batch: ${batchFiles} files × ${batchMinutes} min at ${batchRate / 1000} kHz (decode + timing + shape per file), built CLI, ${repeats} rounds`);
     const cpu = (r: ReturnType<typeof timeCli>): string => (r.cpuS === null ? '–' : `${r.cpuS.toFixed(2)} s (${Math.round((100 * r.cpuS) / r.wallS)} %)`);
     const rss = (r: ReturnType<typeof timeCli>): string => (r.maxRssMB === null ? '–' : `${r.maxRssMB.toFixed(0)} MB`);
     printTable(
