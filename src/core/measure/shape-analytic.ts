@@ -150,15 +150,26 @@ function applyGain(spec: number[], gain: Float64Array): void {
 
 /** re/im[i] = time(i − start) · e^(−jω0·i) for i in s…end − 1. */
 function mixDown(time: number[], s: number, end: number, start: number, w0: number, re: Float32Array, im: Float32Array): void {
+  // e^{jω0 i} by rotation, one complex multiply per sample, with exact cos/sin every 256 samples
+  // (the rotation's rounding, about 1e-16 per step, stays far below float32 in between).
+  const stepC = Math.cos(w0);
+  const stepS = Math.sin(w0);
+  let c = 1;
+  let sn = 0;
   for (let i = s; i < end; i++) {
+    if (((i - s) & 255) === 0) {
+      c = Math.cos(w0 * i);
+      sn = Math.sin(w0 * i);
+    }
     const m = i - start;
     const zr = time[2 * m]!;
     const zi = time[2 * m + 1]!;
-    const c = Math.cos(w0 * i);
-    const sn = Math.sin(w0 * i);
     // z · e^{−jω0 i}
     re[i] = zr * c + zi * sn;
     im[i] = zi * c - zr * sn;
+    const nc = c * stepC - sn * stepS;
+    sn = sn * stepC + c * stepS;
+    c = nc;
   }
 }
 
