@@ -8,7 +8,7 @@ import { InputError } from '../core/errors.js';
 import { measureShape } from '../core/measure/shape.js';
 import { measureTiming } from '../core/measure/timing.js';
 import { pickChannel, StreamDecoder, type DecodeResult } from '../core/receive/index.js';
-import { concatChunks, openAudio, type AudioSource, type OpenAudioOptions } from '../io/audio-source.js';
+import { concatChunks, keepableChunk, openAudio, type AudioSource, type OpenAudioOptions } from '../io/audio-source.js';
 
 /** One line of a batch report. Numbers are null where they could not be measured. */
 export interface BatchRow {
@@ -167,7 +167,7 @@ async function decodeChunks(audio: AudioSource, options: StreamDecodeOptions): P
       feed(chunk[channel]!);
       continue;
     }
-    held.push(audio.reusesChunks ? chunk.map((a) => a.slice()) : chunk); // kept past the next chunk
+    held.push(keepableChunk(audio, chunk));
     heldFrames += chunk[0]!.length;
     if (heldFrames >= PICK_SECONDS * sampleRate) choose();
   }

@@ -130,7 +130,7 @@ export async function openAudio(pathOrDash: string, options: OpenAudioOptions = 
         break;
       }
       // Copies when arrays are reused: more blocks may be needed before the header is complete.
-      for (const c of parser.push(r.value)) early.push(reuse ? c.map((a) => a.slice()) : c);
+      for (const c of parser.push(r.value)) early.push(keepableChunk({ reusesChunks: reuse }, c));
     }
   } catch (err) {
     await blocks.return?.(); // close the file now, not at garbage collection
@@ -146,7 +146,6 @@ export async function openAudio(pathOrDash: string, options: OpenAudioOptions = 
     durationMs = (Math.floor(bytes / frameBytes(format)) / format.sampleRate) * 1000;
   }
   const warnings: string[] = [];
-  let used = false;
   return {
     name,
     sampleRate: format.sampleRate,
@@ -156,23 +155,19 @@ export async function openAudio(pathOrDash: string, options: OpenAudioOptions = 
     streaming: true,
     reusesChunks: reuse,
     warnings,
-    chunks() {
-      if (used) throw new Error('audio chunks can be read only once');
-      used = true;
-      return (async function* () {
-        try {
-          for (const c of early.splice(0)) yield c;
-          while (!ended && !(parser instanceof WavStreamParser && parser.done)) {
-            const r = await blocks.next();
-            if (r.done) break;
-            for (const c of parser.push(r.value)) yield c;
-          }
-          warnings.push(...parser.finish().warnings);
-        } finally {
-          await blocks.return?.();
+    chunks: readOnce(async function* () {
+      try {
+        for (const c of early.splice(0)) yield c;
+        while (!ended && !(parser instanceof WavStreamParser && parser.done)) {
+          const r = await blocks.next();
+          if (r.done) break;
+          for (const c of parser.push(r.value)) yield c;
         }
-      })();
-    },
+        warnings.push(...parser.finish().warnings);
+      } finally {
+        await blocks.return?.();
+      }
+    }),
     async close() {
       await blocks.return?.();
     },
@@ -215,7 +210,6 @@ export function openWavBytes(name: string, bytes: Uint8Array): AudioSource {
     if (bad > 0) warnings.push(`${name}: ${bad} non-finite float samples (NaN or infinity) read as 0`);
   }
   const frames = channels[0]?.length ?? 0;
-  let used = false;
   return {
     name,
     sampleRate: f.sampleRate,
@@ -225,17 +219,31 @@ export function openWavBytes(name: string, bytes: Uint8Array): AudioSource {
     streaming: false,
     reusesChunks: false,
     warnings,
-    chunks() {
-      if (used) throw new Error('audio chunks can be read only once');
-      used = true;
-      return (async function* () {
-        for (let i = 0; i < frames; i += WHOLE_CHUNK_FRAMES) {
-          yield channels.map((c) => c.subarray(i, Math.min(frames, i + WHOLE_CHUNK_FRAMES)));
-        }
-      })();
-    },
+    chunks: readOnce(async function* () {
+      for (let i = 0; i < frames; i += WHOLE_CHUNK_FRAMES) {
+        yield channels.map((c) => c.subarray(i, Math.min(frames, i + WHOLE_CHUNK_FRAMES)));
+      }
+    }),
     close: async () => {},
   };
+}
+
+/** AudioSource.chunks from a generator: the audio can be gone through once only. */
+function readOnce(chunks: () => AsyncGenerator<Float32Array[]>): () => AsyncIterable<Float32Array[]> {
+  let used = false;
+  return () => {
+    if (used) throw new Error('audio chunks can be read only once');
+    used = true;
+    return chunks();
+  };
+}
+
+/**
+ * A chunk that may be kept past the next one: a copy when the source reuses its arrays, else the
+ * chunk itself.
+ */
+export function keepableChunk(source: Pick<AudioSource, 'reusesChunks'>, chunk: Float32Array[]): Float32Array[] {
+  return source.reusesChunks ? chunk.map((a) => a.slice()) : chunk;
 }
 
 /** Joins chunks into one array per channel. */
@@ -260,6 +268,6 @@ export function concatChunks(parts: readonly Float32Array[][], channelCount: num
  */
 export async function readAllAudio(source: AudioSource): Promise<Float32Array[]> {
   const parts: Float32Array[][] = [];
-  for await (const c of source.chunks()) parts.push(source.reusesChunks ? c.map((a) => a.slice()) : c);
+  for await (const c of source.chunks()) parts.push(keepableChunk(source, c));
   return concatChunks(parts, source.channelCount);
 }

@@ -24,7 +24,7 @@ const NOISE_GATE = 4;
 const NOISE_GATE_MEAN = 1 - (NOISE_GATE * Math.exp(-NOISE_GATE)) / (1 - Math.exp(-NOISE_GATE));
 
 /**
- * @example const s = new LevelSlicer({ windowSlots: 4, slotMs: 15, signalPow: 2.25, noisePow: 0.25, framesPerSlot: 6 }); s.step(1.5, 0).on // true once a mark fills the window
+ * @example const s = new LevelSlicer({ windowSlots: 4, slotMs: 15, signalPow: 2.25, noisePow: 0.25, framesPerSlot: 6 }); s.step(1.5, 0) // true once a mark fills the window
  */
 export class LevelSlicer {
   private readonly w: number;

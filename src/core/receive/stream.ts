@@ -258,13 +258,10 @@ export class StreamDecoder {
       toneSigmaHz: 2, rateSigmaHzPerS: drifting ? 0.5 : 1,
     });
     this.phase = 'run';
-    const copyRe = this.frameRe.slice(0, nFrames);
-    const copyIm = this.frameIm.slice(0, nFrames);
-    const copyGRe = this.frameGRe.slice(0, nFrames);
-    const copyGIm = this.frameGIm.slice(0, nFrames);
-    // The pre-roll was mixed before any tracking: retuning now would not change these frames.
+    // The pre-roll was mixed before any tracking: retuning now would not change these frames (and
+    // nothing mixes while they are replayed, so the frame buffers are read in place).
     this.replaying = true;
-    this.frames(copyRe, copyIm, copyGRe, copyGIm, nFrames);
+    this.frames(this.frameRe, this.frameIm, this.frameGRe, this.frameGIm, nFrames);
     this.replaying = false;
     this.preroll = new Float32Array(0);
     this.preLen = 0;
@@ -643,35 +640,30 @@ export class StreamDecoder {
       this.snr.addGap(this.zRe[i]! ** 2 + this.zIm[i]! ** 2);
     }
     const m = this.model!;
-    const a = 0.12;
     // Timing spread (jitter) of each class, tracked as the mean square of ln(d / mean): machine
     // keying earns tight priors, hand keying wide ones.
     const sp = (m.spread ??= { dit: 0.3, dah: 0.3, elementGap: 0.35, letterGap: 0.35, wordGap: 0.35 });
     switch (s.kind) {
       case 'mark':
         if (TRIE.symbol[s.node] === 1) {
-          sp.dah = trackedSpread(sp.dah, d, m.dah);
-          m.dah += a * (d - m.dah);
+          trackClass(m, sp, 'dah', d);
           st.unitSum += d / 3;
         } else {
-          sp.dit = trackedSpread(sp.dit, d, m.dit);
-          m.dit += a * (d - m.dit);
+          trackClass(m, sp, 'dit', d);
           st.unitSum += d;
         }
         st.unitCount++;
         break;
       case 'element-gap':
-        sp.elementGap = trackedSpread(sp.elementGap, d, m.elementGap);
-        m.elementGap += a * (d - m.elementGap);
+        trackClass(m, sp, 'elementGap', d);
         break;
       case 'letter-gap':
-        sp.letterGap = trackedSpread(sp.letterGap, d, m.letterGap);
-        m.letterGap += a * (d - m.letterGap);
+        trackClass(m, sp, 'letterGap', d);
         st.letterGapSum += d;
         st.letterGapCount++;
         break;
       case 'word-gap':
-        if (d < 1.3 * m.wordGap) m.wordGap += a * (d - m.wordGap);
+        if (d < 1.3 * m.wordGap) m.wordGap += MEAN_RATE * (d - m.wordGap);
         break;
       default:
         break;
@@ -760,6 +752,15 @@ export function constrainModel(m: DurationModel): DurationModel {
   m.wordGap = Math.max(m.wordGap, 1.6 * m.letterGap, 5 * unit);
   for (const key of ['dit', 'dah', 'elementGap', 'letterGap', 'wordGap'] as const) m[key] = Math.max(1, m[key]);
   return m;
+}
+
+/** How far each decided segment moves its class's mean length (exponential average). */
+const MEAN_RATE = 0.12;
+
+/** One decided segment of a class: its spread (against the mean so far), then its mean, in place. */
+function trackClass(m: DurationModel, sp: NonNullable<DurationModel['spread']>, key: 'dit' | 'dah' | 'elementGap' | 'letterGap', d: number): void {
+  sp[key] = trackedSpread(sp[key], d, m[key]);
+  m[key] += MEAN_RATE * (d - m[key]);
 }
 
 /**

@@ -49,10 +49,14 @@ const CHAR_PRIOR = 0;
  * @example markScore(0, 0) //=> 0
  */
 export function markScore(x: number, q: number): number {
-  const full = lnI0Fast(x) - q;
+  return weakerMarkScore(lnI0Fast(x) - q, x, q);
+}
+
+/** markScore given its first term, full = ln I0(x) − q (the score at the tracked level), already worked out. */
+function weakerMarkScore(full: number, x: number, q: number): number {
   const half = lnI0Fast(0.5 * x) - 0.25 * q + WEAKER_PRIOR;
   const quarter = lnI0Fast(0.25 * x) - q / 16 + WEAKER_PRIOR_12DB;
-  return Math.max(full, half, quarter);
+  return full > half ? (full > quarter ? full : quarter) : half > quarter ? half : quarter;
 }
 
 /** ln d for the whole durations a table can hold (d ≤ historySlots / 4 ≤ 2^14). */
@@ -70,14 +74,13 @@ interface DurationTable {
 
 /**
  * Log-normal duration prior around `mean` [slots] with log-scale spread `spread`, from 2.5 spreads
- * below to 2.5 above (at most `cap`), normalised over the whole slots it covers. Written into
- * `into` when given (its logP must hold cap + 1 entries): the decoder refreshes its tables at every
- * commit, and reuses their arrays.
+ * below to 2.5 above (at most `cap`), normalised over the whole slots it covers, written into
+ * `into` (its logP holds cap + 1 entries): the decoder refreshes its tables at every commit, in place.
  */
-function durationTable(mean: number, spread: number, cap: number, into?: DurationTable): DurationTable {
+function durationTable(mean: number, spread: number, cap: number, into: DurationTable): void {
   const min = Math.max(1, Math.floor(mean * Math.exp(-2.5 * spread)));
   const max = Math.max(min, Math.min(cap, Math.ceil(mean * Math.exp(2.5 * spread))));
-  const logP = into ? into.logP : new Float64Array(max + 1);
+  const logP = into.logP;
   logP.fill(NEG, 0, min);
   const k = 1 / (2 * spread * spread);
   const lnMean = Math.log(mean);
@@ -89,10 +92,8 @@ function durationTable(mean: number, spread: number, cap: number, into?: Duratio
   }
   const norm = Math.log(total);
   for (let d = min; d <= max; d++) logP[d] = logP[d]! - norm;
-  if (!into) return { min, max, logP };
   into.min = min;
   into.max = max;
-  return into;
 }
 
 function emptyTable(cap: number): DurationTable {
@@ -477,9 +478,7 @@ export class SequenceDecoder {
       const x = 2 * Math.sqrt(dr * dr + di * di);
       const q = yq - this.yQ[si]!;
       const full = lnI0Fast(x) - q;
-      const half = lnI0Fast(0.5 * x) - 0.25 * q + WEAKER_PRIOR;
-      const quarter = lnI0Fast(0.25 * x) - q / 16 + WEAKER_PRIOR_12DB;
-      const fw = full > half ? (full > quarter ? full : quarter) : half > quarter ? half : quarter;
+      const fw = weakerMarkScore(full, x, q);
       w[d] = fw;
       llr[d] = d >= minWeak ? fw : full;
     }
