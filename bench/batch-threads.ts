@@ -5,7 +5,7 @@
  * and --jobs 2 over the same folder. Shows whether the workers themselves scale, and how much CPU
  * the background threads take from the second core.
  *
- *   npx tsx bench/batch-threads.ts FOLDER [--rounds R]
+ *   npx tsx bench/batch-threads.ts FOLDER [--rounds R] [--node-flags "--some-v8-flag ..."]
  *   (FOLDER: e.g. the throughput bench's batch-6x60min, kept with `npm run bench:throughput -- --keep --dir DIR`)
  */
 import { spawn } from 'node:child_process';
@@ -18,6 +18,8 @@ if (!folder || !existsSync(folder)) {
   process.exit(2);
 }
 const rounds = process.argv.includes('--rounds') ? Number(process.argv[process.argv.indexOf('--rounds') + 1]) : 2;
+/** Extra flags for node/V8 (e.g. --node-flags "--single-threaded-gc"), to compare engine settings. */
+const nodeFlags = process.argv.includes('--node-flags') ? process.argv[process.argv.indexOf('--node-flags') + 1]!.split(' ').filter(Boolean) : [];
 const bin = fileURLToPath(new URL('../dist/cli/bin.js', import.meta.url));
 const TICK_S = 0.01; // USER_HZ = 100 on Linux
 
@@ -44,7 +46,7 @@ function threadTicks(pid: number): Map<number, number> {
 
 async function run(jobs: number): Promise<{ wallS: number; mainS: number; workersS: number[]; backgroundS: number }> {
   const t0 = performance.now();
-  const child = spawn(process.execPath, [bin, 'batch', folder!, '--jobs', String(jobs), '--json'], { stdio: ['ignore', 'ignore', 'ignore'] });
+  const child = spawn(process.execPath, [...nodeFlags, bin, 'batch', folder!, '--jobs', String(jobs), '--json'], { stdio: ['ignore', 'ignore', 'ignore'] });
   const last = new Map<number, number>();
   const timer = setInterval(() => {
     for (const [tid, t] of threadTicks(child.pid!)) last.set(tid, t);
