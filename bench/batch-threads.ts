@@ -3,7 +3,8 @@
  * 50 ms until the process ends): the process's main thread, the worker threads (the `jobs` busiest
  * other threads) and the engine's background threads (compiler and garbage collector), for --jobs 1
  * and --jobs 2 over the same folder. Shows whether the workers themselves scale, and how much CPU
- * the background threads take from the second core.
+ * the background threads take from the second core. (With as many workers as cores, `batch` has the
+ * engine compile on the worker threads, so the compiler's time then shows in the worker column.)
  *
  *   npx tsx bench/batch-threads.ts FOLDER [--rounds R] [--node-flags "--some-v8-flag ..."]
  *   (FOLDER: e.g. the throughput bench's batch-6x60min, kept with `npm run bench:throughput -- --keep --dir DIR`)
