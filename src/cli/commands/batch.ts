@@ -286,8 +286,8 @@ Examples:
  * they only take turns with the workers, and a worker keeps running its slow unoptimised code while
  * its compile job waits in the queue. Compiling on the worker thread itself (set before the pool
  * makes the workers' engines; it does not change the main thread's, which is already made) was
- * faster in 10 of 11 alternating rounds of a 6 × 1 h batch with 2 workers on 2 cores (by 0.16–1.1 s
- * of 5–9 s; once 0.1 s slower), measured with the built CLI. With fewer workers than cores the
+ * faster in 14 of 15 alternating rounds of a 6 × 1 h batch with 2 workers on 2 cores (by 0.16–1.34 s
+ * of 5–9 s; once 0.11 s slower), measured with the built CLI. With fewer workers than cores the
  * default stays: the compiler then runs on an idle core for free.
  */
 export function compileOnWorkerThreads(): void {
