@@ -9,7 +9,7 @@ import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../src/core/errors.js';
 import { seededRandom } from '../../src/core/signal/noise.js';
-import { decodeAudioSource } from '../../src/cli/analyze-recording.js';
+import { analyzeRecording, decodeAudioSource, type BatchRow } from '../../src/cli/analyze-recording.js';
 import { openAudio, openWavBytes, readAllAudio, type AudioSource } from '../../src/io/audio-source.js';
 import { decodeWavBytes } from '../../src/io/wav-read.js';
 import { RawPcmParser, WavStreamParser } from '../../src/io/wav-stream.js';
@@ -55,18 +55,23 @@ function streamFrames(bytes: Uint8Array, pieceSeed: number): { frames: number; c
   return { frames, channelCount: parser.format!.channelCount };
 }
 
+/** `bytes` in seeded random pieces of 1–300 bytes, as a pipe delivers them. */
+function* pieces(bytes: Uint8Array, pieceSeed: number): Generator<Uint8Array> {
+  const random = seededRandom(pieceSeed);
+  for (let pos = 0; pos < bytes.length; ) {
+    const n = 1 + Math.floor(random() * 300);
+    yield bytes.subarray(pos, pos + n);
+    pos += n;
+  }
+}
+
 /**
  * The streaming path of openAudio over `bytes` arriving as a pipe in seeded random pieces; every
  * other seed with reused chunk arrays (as `batch` and `decode` read), which must not change a sample.
  */
 function openStreamed(bytes: Uint8Array, pieceSeed: number): Promise<AudioSource> {
-  const random = seededRandom(pieceSeed);
   async function* pipe(): AsyncGenerator<Uint8Array> {
-    for (let pos = 0; pos < bytes.length; ) {
-      const n = 1 + Math.floor(random() * 300);
-      yield bytes.subarray(pos, pos + n);
-      pos += n;
-    }
+    yield* pieces(bytes, pieceSeed);
   }
   return openAudio('-', { stdin: pipe(), reuseChunks: (pieceSeed & 1) === 1 });
 }
@@ -196,6 +201,35 @@ describe('fuzzing the WAV readers', () => {
         }
       }),
       { numRuns: LONG_RUNS, seed: SEED + 5 },
+    );
+  }, TIMEOUT_MS);
+
+  it(`whole batch analysis (decode, timing, shape) of damaged keyed recordings and mutated files: a row, never an internal error (${LONG_RUNS} + ${LONG_RUNS} cases)`, async () => {
+    // What `batch` does with every file. The timing and shape stages turn their failures into
+    // warnings, so an exception there would hide as "internal error: …" in a warning: none may appear.
+    const plan = planKeying('Q7ZKT TEST Q7ZKT', { wpm: 25 });
+    const full = synthesizeTone({ marks: plan.marks, sampleRate: 8000, toneHz: 700, levelDb: -6, edge: 'raised-cosine', riseMs: 5, padMs: 200 }).samples;
+    const keyed = (seconds: number): Float32Array => full.subarray(0, Math.min(full.length, Math.round(seconds * 8000)));
+    const check = (row: BatchRow): void => {
+      expect(['ok', 'no signal', 'mask fail', 'not judged', 'error']).toContain(row.verdict);
+      for (const line of [row.error ?? '', ...row.warnings]) {
+        expect(line).not.toContain('\n');
+        expect(line).not.toMatch(/internal error/);
+      }
+      if (row.verdict === 'error') expect(row.error).toMatch(/^stdin: /);
+      for (const v of [row.durationS, row.wpm, row.toneHz, row.snrDb, row.riseMs, row.occupiedBandwidthHz, row.jitterPct]) {
+        if (v !== null) expect(Number.isFinite(v)).toBe(true);
+      }
+    };
+    const analyze = (bytes: Uint8Array, seed: number): Promise<BatchRow> =>
+      analyzeRecording('-', { stdin: (async function* () { yield* pieces(bytes, seed); })(), shapeSeconds: 2 });
+    await fc.assert(
+      fc.asyncProperty(damagedRecording(keyed), fc.integer(), async (bytes, seed) => check(await analyze(bytes, seed))),
+      { numRuns: LONG_RUNS, seed: SEED + 6 },
+    );
+    await fc.assert(
+      fc.asyncProperty(mutatedWav(), fc.integer(), async (bytes, seed) => check(await analyze(bytes, seed))),
+      { numRuns: LONG_RUNS, seed: SEED + 7 },
     );
   }, TIMEOUT_MS);
 
