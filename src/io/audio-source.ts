@@ -271,3 +271,55 @@ export async function readAllAudio(source: AudioSource): Promise<Float32Array[]>
   for await (const c of source.chunks()) parts.push(keepableChunk(source, c));
   return concatChunks(parts, source.channelCount);
 }
+
+/** One channel's stretch of a recording, and where it sits in the whole. */
+export interface ChannelWindow {
+  samples: Float32Array;
+  /** Where the stretch starts in the recording [s]. */
+  fromS: number;
+  /** Length of the whole recording [s], when known (files); null for stdin. */
+  totalS: number | null;
+}
+
+/**
+ * One channel's samples from `fromS` for at most `seconds`, read chunk by chunk: only the stretch is
+ * kept, and reading stops as soon as it is full, so the rest of a long file is never read.
+ * @param channel - 0-based.
+ * @example (await readChannelWindow(await openAudio('long.wav'), 0, 0, 600)).samples.length //=> ≤ 600 × rate
+ */
+export async function readChannelWindow(source: AudioSource, channel: number, fromS: number, seconds: number): Promise<ChannelWindow> {
+  const rate = source.sampleRate;
+  const totalS = source.durationMs === null ? null : source.durationMs / 1000;
+  try {
+    if (channel >= source.channelCount) throw new InputError(`${source.name}: has ${source.channelCount} channel(s), no channel ${channel + 1}`);
+    const start = Math.round(fromS * rate);
+    const totalFrames = totalS === null ? null : Math.round(totalS * rate);
+    if (totalFrames !== null && start >= totalFrames) {
+      throw new InputError(`${source.name}: --from ${fromS} s is past the end of the recording (${totalS!.toFixed(1)} s)`);
+    }
+    const want = Math.round(seconds * rate);
+    // Known length: one array of the right size. Unknown (a pipe): pieces, joined at the end.
+    const out: Float32Array | null = totalFrames === null ? null : new Float32Array(Math.min(want, totalFrames - start));
+    const pieces: Float32Array[][] = [];
+    let frame = 0; // frames of the recording gone by
+    let kept = 0;
+    const limit = out === null ? want : out.length;
+    for await (const chunk of source.chunks()) {
+      const x = chunk[channel]!;
+      const from = Math.max(0, start - frame);
+      const n = Math.min(x.length - from, limit - kept);
+      if (n > 0) {
+        if (out !== null) out.set(x.subarray(from, from + n), kept);
+        else pieces.push([x.slice(from, from + n)]);
+        kept += n;
+      }
+      frame += x.length;
+      if (kept >= limit) break;
+    }
+    if (kept === 0) throw new InputError(`${source.name}: no audio samples${start > 0 ? ` from ${fromS} s on` : ''}`);
+    const samples = out === null ? concatChunks(pieces, 1)[0]! : kept < out.length ? out.subarray(0, kept) : out;
+    return { samples, fromS: start / rate, totalS };
+  } finally {
+    await source.close();
+  }
+}

@@ -4,6 +4,7 @@
  * Every figure comes from the core's functions.
  */
 import { readWavFile } from '../io/wav-read.js';
+import { openAudio, readChannelWindow } from '../io/audio-source.js';
 import { planKeying } from '../core/timing/plan.js';
 import type { EdgeKind } from '../core/signal/edges.js';
 import { loadReceive, loadShape, loadTiming, NotAvailableError, type DecodeResult } from './core-modules.js';
@@ -77,8 +78,13 @@ export async function runShapeTask(task: ShapeTask, onProgress: (fraction: numbe
   if (!shape) throw new NotAvailableError('the keying-shape analysis');
   switch (task.kind) {
     case 'measure': {
-      const audio = await readWavFile(task.path);
-      return shape.measureShape(audio.channels[0]!, audio.sampleRate, { onProgress });
+      // As `keyform shape` reads it: streamed, and only the default stretch of a long recording kept.
+      const audio = await openAudio(task.path, { streamAboveBytes: 0, reuseChunks: true });
+      const { samples, fromS, totalS } = await readChannelWindow(audio, 0, 0, shape.defaultShapeWindowS?.(audio.sampleRate) ?? Infinity);
+      const report = shape.measureShape(samples, audio.sampleRate, { onProgress });
+      const note = shape.stretchNote?.(fromS, samples.length / audio.sampleRate, totalS);
+      if (note) report.warnings.push(`${note.text}: \`keyform shape --from S --seconds S\` analyses another stretch`);
+      return report;
     }
     case 'predict': {
       // The planned message's own marks, so the figures describe what this plan would send.

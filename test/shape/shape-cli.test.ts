@@ -112,3 +112,46 @@ describe('keyform shape', () => {
     }
   });
 });
+
+describe('keyform shape on a stretch of a recording (--from, --seconds)', () => {
+  // The transmitter before and after its fix in one file: hard keying, then 5 ms raised-cosine edges.
+  const plan = planKeying('Q7ZKT TEST', { wpm: 20 });
+  const part = (edge: 'raised-cosine' | 'hard', riseMs: number): Float32Array =>
+    synthesizeTone({ marks: plan.marks, sampleRate: 16_000, toneHz: 700, levelDb: -6, edge, riseMs, padMs: 300 }).samples;
+  const hardPart = part('hard', 0);
+  const softPart = part('raised-cosine', 5);
+  const both = new Float32Array(hardPart.length + softPart.length);
+  both.set(hardPart);
+  both.set(softPart, hardPart.length);
+  const path = join(dir, 'before-and-after.wav');
+  writeFileSync(path, encodeWav({ sampleRate: 16_000, channels: [both], encoding: 's16' }));
+  const splitS = hardPart.length / 16_000;
+  const totalS = both.length / 16_000;
+
+  it('measures only the stretch asked for: the 5 ms edges after the split, the hard ones before it', async () => {
+    const after = JSON.parse((await runCli(['shape', path, '--from', String(splitS), '--json'])).stdout);
+    // The synthesizer's 5 ms raised-cosine edges, within 3 % (as for a whole recording of them).
+    expect(Math.abs(after.riseMs.median / 5 - 1)).toBeLessThan(0.03);
+    expect(after.mask.pass).toBe(true);
+    expect(after.stretch).toEqual({ fromS: Math.round(splitS * 1000) / 1000, toS: Math.round(totalS * 1000) / 1000, totalS: Math.round(totalS * 1000) / 1000 });
+    expect(after.durationMs / 1000).toBeCloseTo(totalS - splitS, 3);
+    const before = await runCli(['shape', path, '--seconds', String(splitS)]);
+    expect(before.code).toBe(1); // the hard keying fails the mask
+    expect(before.stdout).toMatch(/FAIL/);
+    expect(before.stdout).toContain(`warning: analysed 0–${Math.round(splitS * 1000) / 1000} s of the recording's ${Math.round(totalS * 1000) / 1000} s`);
+    const j = JSON.parse((await runCli(['shape', path, '--seconds', String(splitS), '--json'])).stdout);
+    expect(j.riseMs.median).toBeLessThan(1);
+  });
+
+  it('the whole of a short recording is read as before: no stretch in the report', async () => {
+    const j = JSON.parse((await runCli(['shape', path, '--json'])).stdout);
+    expect(j).not.toHaveProperty('stretch');
+    expect(j.durationMs / 1000).toBeCloseTo(totalS, 3);
+  });
+
+  it('a start past the end: one line, exit 2', async () => {
+    const r = await runCli(['shape', path, '--from', '999']);
+    expect(r.code).toBe(2);
+    expect(r.stderr.trim()).toBe(`keyform: ${path}: --from 999 s is past the end of the recording (${totalS.toFixed(1)} s)`);
+  });
+});

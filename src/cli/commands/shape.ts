@@ -2,12 +2,15 @@ import { Option, type Command } from 'commander';
 import { InputError } from '../../core/errors.js';
 import { EDGE_KINDS, type EdgeKind } from '../../core/signal/edges.js';
 import { parseMaskCsv, type SpectralMask } from '../../core/measure/mask.js';
-import { CAUTION, FILTER_NOTE, MIN_STRONG_MARKS, measureShape, predictShape, sweepRise, type ShapeReport, type SweepResult } from '../../core/measure/shape.js';
+import {
+  CAUTION, DEFAULT_SHAPE_WINDOW_S, DEFAULT_SHAPE_WINDOW_SAMPLES, defaultShapeWindowS, FILTER_NOTE, MIN_STRONG_MARKS, measureShape, predictShape, stretchNote, sweepRise,
+  type ShapeReport, type SweepResult,
+} from '../../core/measure/shape.js';
 import { MIN_EDGE_SNR_DB, MIN_SPECTRUM_SNR_DB } from '../../core/measure/shape-snr.js';
 import { readInputFile, writeOutputFile } from '../../io/files.js';
 import { formatJson } from '../../io/json.js';
 import { shapeSvg } from '../../io/svg.js';
-import { readWavFile } from '../../io/wav-read.js';
+import { openAudio, readChannelWindow } from '../../io/audio-source.js';
 import type { CommandContext } from '../io.js';
 import { numberIn, oneOf } from '../options.js';
 import { createProgress } from '../progress.js';
@@ -28,6 +31,8 @@ export interface ShapeCliOptions {
   json?: boolean;
   plot?: string;
   force?: boolean;
+  from: number;
+  seconds?: number;
 }
 
 const f = (x: number | null | undefined, digits = 1): string => (x === null || x === undefined ? '–' : x.toFixed(digits));
@@ -145,6 +150,12 @@ export function registerShape(program: Command, ctx: CommandContext): void {
     .addOption(new Option('--edge <kind>', `--predict/--sweep: edge shape (${EDGE_KINDS.join(', ')})`).argParser(oneOf('--edge', EDGE_KINDS)).default('raised-cosine'))
     .option('--message <text>', "--predict/--sweep: text keyed for the prediction (default 'PARIS PARIS')")
     .option('--chirp-window <ms>', 'how long after key-down to look for chirp (ms, 0.5–200)', numberIn('--chirp-window', 0.5, 200), 10)
+    .option('--from <s>', 'start the analysis this far into the recording (s, 0–86400)', numberIn('--from', 0, 86_400), 0)
+    .option(
+      '--seconds <s>',
+      `length of the stretch analysed (s, 0.05–86400; default ${DEFAULT_SHAPE_WINDOW_S}, or ${DEFAULT_SHAPE_WINDOW_SAMPLES / 2 ** 20} Mi samples at high rates): the analysis holds the stretch in memory, and the rest of a long file is not read`,
+      numberIn('--seconds', 0.05, 86_400),
+    )
     .option('--json', 'print the report as JSON')
     .option('--plot <file>', 'write an SVG: spectrum with necessary bandwidth and mask, and the edge overlay')
     .option('--force', 'replace --plot if it exists')
@@ -179,13 +190,16 @@ Caution: ${CAUTION}`,
           return;
         }
         let report: ShapeReport;
+        /** The stretch analysed, when it is not the whole recording. */
+        let stretch: { fromS: number; toS: number; totalS: number | null } | null = null;
         if (o.predict) {
           if (o.wpm === undefined) throw new InputError('--predict needs --wpm');
           report = predictShape({ wpm: o.wpm, farnsworthWpm: o.farnsworth ?? null, riseMs: o.rise, edge: o.edge, text: o.message, k: o.k, mask, chirpWindowMs: o.chirpWindow, onProgress: (x) => progress.update(x) });
         } else {
-          const audio = await readWavFile(file!);
-          const ch = audio.channels[o.channel - 1];
-          if (!ch) throw new InputError(`${file}: has ${audio.channels.length} channel(s), no channel ${o.channel}`);
+          // Streamed whatever the size: only the stretch is kept, and the rest of a long file is not read.
+          const audio = await openAudio(file!, { streamAboveBytes: 0, reuseChunks: true });
+          const seconds = o.seconds ?? defaultShapeWindowS(audio.sampleRate);
+          const { samples: ch, fromS, totalS } = await readChannelWindow(audio, o.channel - 1, o.from, seconds);
           report = measureShape(ch, audio.sampleRate, {
             toneHz: o.tone,
             k: o.k,
@@ -194,6 +208,11 @@ Caution: ${CAUTION}`,
             chirpWindowMs: o.chirpWindow,
             onProgress: (x) => progress.update(x),
           });
+          const note = stretchNote(fromS, ch.length / audio.sampleRate, totalS);
+          if (note) {
+            stretch = note.stretch;
+            report.warnings.push(`${note.text}: ${o.seconds === undefined ? `--seconds (default ${seconds} s here) and --from choose the stretch` : '--from and --seconds chose the stretch'}`);
+          }
         }
         progress.done();
         let sweep: SweepResult | null = null;
@@ -210,7 +229,7 @@ Caution: ${CAUTION}`,
           await writeOutputFile(o.plot, shapeSvg(report), { force: o.force });
           ctx.io.stderr.write(`keyform: wrote ${o.plot}\n`);
         }
-        if (o.json) ctx.io.stdout.write(formatJson(sweep ? { ...report, sweep } : report));
+        if (o.json) ctx.io.stdout.write(formatJson({ ...report, ...(stretch ? { stretch } : {}), ...(sweep ? { sweep } : {}) }));
         else ctx.io.stdout.write(formatShapeReport(report, ctx.color) + (sweep ? '\n' + formatSweep(sweep) : ''));
         if (report.mask.pass === false) ctx.setExitCode(1);
       } finally {

@@ -599,6 +599,36 @@ function cutEdgeWarnings(ends: EnvelopePass['ends'], sampleRate: number): string
   return out;
 }
 
+/** Default stretch of a recording the shape analysis is given [s] (at most DEFAULT_SHAPE_WINDOW_SAMPLES samples). */
+export const DEFAULT_SHAPE_WINDOW_S = 300;
+/** 2^24 samples (64 MiB as 32-bit floats): 349 s at 48 kHz, 87 s at 192 kHz. */
+export const DEFAULT_SHAPE_WINDOW_SAMPLES = 2 ** 24;
+
+/**
+ * How much of a recording to analyse by default at `sampleRate` [s]: five minutes (fewer at high
+ * rates) give hundreds of marks for the edge statistics and thousands of spectrum segments, and keep
+ * the analysis's memory bounded whatever the recording's length (it holds its samples).
+ * @example defaultShapeWindowS(8000) //=> 300
+ */
+export function defaultShapeWindowS(sampleRate: number): number {
+  return Math.min(DEFAULT_SHAPE_WINDOW_S, Math.floor(DEFAULT_SHAPE_WINDOW_SAMPLES / sampleRate));
+}
+
+/**
+ * When the analysed stretch is not the whole recording: where it lies (rounded to the ms) and a
+ * sentence saying so, for the report's warnings. Null when it is the whole recording.
+ * @param fromS - Start of the stretch in the recording [s].
+ * @param lengthS - Its length [s].
+ * @param totalS - The recording's length [s], or null when unknown (a pipe).
+ */
+export function stretchNote(fromS: number, lengthS: number, totalS: number | null): { stretch: { fromS: number; toS: number; totalS: number | null }; text: string } | null {
+  const ms = (x: number): number => Math.round(x * 1000) / 1000;
+  const toS = fromS + lengthS;
+  if (fromS <= 0 && (totalS === null || toS >= totalS - 0.001)) return null;
+  const stretch = { fromS: ms(fromS), toS: ms(toS), totalS: totalS === null ? null : ms(totalS) };
+  return { stretch, text: `analysed ${stretch.fromS}–${stretch.toS} s of the recording's ${stretch.totalS ?? '?'} s (times in this report count from ${stretch.fromS} s)` };
+}
+
 /**
  * Measures the keying shape of a recording of a keyed tone.
  * @param samples - Mono samples (any scale); at least 50 ms.
