@@ -96,6 +96,8 @@ export interface StreamDecodeOptions {
   onProgress?: (fraction: number) => void;
   /** Newly final text as it is decoded (live following of a pipe). */
   onText?: (text: string) => void;
+  /** Keep the receiver's envelope and threshold, decimated, for plotting (the app). */
+  keepEnvelope?: boolean;
 }
 
 export interface StreamDecode {
@@ -141,6 +143,7 @@ async function decodeChunks(audio: AudioSource, options: StreamDecodeOptions): P
     onText: options.onText,
     onProgress: options.onProgress,
     expectedSamples: totalFrames ?? undefined,
+    keepEnvelope: options.keepEnvelope,
   });
   let fed = 0;
 

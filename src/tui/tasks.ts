@@ -3,8 +3,8 @@
  * shape, sweeping the rise time — so they can run in a worker thread (worker.ts) or inline.
  * Every figure comes from the core's functions.
  */
-import { readWavFile } from '../io/wav-read.js';
-import { openAudio, readChannelWindow } from '../io/audio-source.js';
+import { decodeAudioSource } from '../cli/analyze-recording.js';
+import { openAudio, readChannelWindow, type AudioSource } from '../io/audio-source.js';
 import { planKeying } from '../core/timing/plan.js';
 import type { EdgeKind } from '../core/signal/edges.js';
 import { loadReceive, loadShape, loadTiming, NotAvailableError, type DecodeResult } from './core-modules.js';
@@ -29,33 +29,39 @@ export interface DecodedRecording {
 
 const yieldToInput = (): Promise<void> => new Promise((r) => setImmediate(r));
 
-/** Reads and decodes a recording, then measures the timing of what was heard. */
+/**
+ * The same audio with a turn of the event loop after every half second of it, so that the app
+ * answers keys while a long recording decodes.
+ */
+function withPauses(source: AudioSource): AudioSource {
+  const every = Math.max(1024, Math.round(source.sampleRate / 2));
+  return {
+    ...source,
+    chunks: () =>
+      (async function* () {
+        let since = 0;
+        for await (const chunk of source.chunks()) {
+          yield chunk;
+          since += chunk[0]!.length;
+          if (since >= every) {
+            since = 0;
+            await yieldToInput();
+          }
+        }
+      })(),
+  };
+}
+
+/**
+ * Reads and decodes a recording, then measures the timing of what was heard. The recording streams
+ * through the receiver as in `keyform decode` (bounded memory whatever its length); a multichannel
+ * one is decoded on the channel with the strongest keyed tone.
+ */
 export async function decodeRecording(path: string, onProgress: (fraction: number) => void): Promise<DecodedRecording> {
   const receive = await loadReceive();
   if (!receive) throw new NotAvailableError('the receiver');
-  const audio = await readWavFile(path);
-  let index = 0;
-  let channelNote: string | null = null;
-  if (audio.channels.length > 1 && receive.pickChannel) {
-    const pick = receive.pickChannel(audio.channels, audio.sampleRate);
-    index = pick.index;
-    channelNote = `channel ${pick.index + 1} of ${audio.channels.length}: ${pick.reason}`;
-  }
-  const samples = audio.channels[index]!;
-  let decode: DecodeResult;
-  if (receive.StreamDecoder) {
-    // Half-second chunks through the streaming receiver, yielding between them.
-    const decoder = new receive.StreamDecoder(audio.sampleRate, { keepEnvelope: true });
-    const chunk = Math.max(1024, Math.round(audio.sampleRate / 2));
-    for (let i = 0; i < samples.length; i += chunk) {
-      decoder.push(samples.subarray(i, Math.min(samples.length, i + chunk)));
-      onProgress(Math.min(1, (i + chunk) / samples.length) * 0.9);
-      await yieldToInput();
-    }
-    decode = decoder.finish();
-  } else {
-    decode = receive.decodeSamples(samples, audio.sampleRate, { keepEnvelope: true, onProgress: (f) => onProgress(f * 0.9) });
-  }
+  const audio = withPauses(await openAudio(path, { reuseChunks: true }));
+  const { result: decode, channelNote } = await decodeAudioSource(audio, { keepEnvelope: true, onProgress: (f) => onProgress(f * 0.9) });
   const timingModule = await loadTiming();
   let timing: Record<string, unknown> | null = null;
   let timingNote: string | undefined;
