@@ -285,9 +285,16 @@ export interface ChannelWindow {
  * One channel's samples from `fromS` for at most `seconds`, read chunk by chunk: only the stretch is
  * kept, and reading stops as soon as it is full, so the rest of a long file is never read.
  * @param channel - 0-based.
+ * @param onProgress - Fraction of the reading done, 0…1 (files only: a pipe's length is unknown).
  * @example (await readChannelWindow(await openAudio('long.wav'), 0, 0, 600)).samples.length //=> ≤ 600 × rate
  */
-export async function readChannelWindow(source: AudioSource, channel: number, fromS: number, seconds: number): Promise<ChannelWindow> {
+export async function readChannelWindow(
+  source: AudioSource,
+  channel: number,
+  fromS: number,
+  seconds: number,
+  onProgress?: (fraction: number) => void,
+): Promise<ChannelWindow> {
   const rate = source.sampleRate;
   const totalS = source.durationMs === null ? null : source.durationMs / 1000;
   try {
@@ -314,6 +321,7 @@ export async function readChannelWindow(source: AudioSource, channel: number, fr
         kept += n;
       }
       frame += x.length;
+      if (onProgress && totalFrames !== null) onProgress(Math.min(1, frame / (start + limit)));
       if (kept >= limit) break;
     }
     if (kept === 0) throw new InputError(`${source.name}: no audio samples${start > 0 ? ` from ${fromS} s on` : ''}`);

@@ -199,14 +199,15 @@ Caution: ${CAUTION}`,
           // Streamed whatever the size: only the stretch is kept, and the rest of a long file is not read.
           const audio = await openAudio(file!, { streamAboveBytes: 0, reuseChunks: true });
           const seconds = o.seconds ?? defaultShapeWindowS(audio.sampleRate);
-          const { samples: ch, fromS, totalS } = await readChannelWindow(audio, o.channel - 1, o.from, seconds);
+          // Reading takes the first tenth of the progress bar (most of the time when --from skips far in).
+          const { samples: ch, fromS, totalS } = await readChannelWindow(audio, o.channel - 1, o.from, seconds, (x) => progress.update(0.1 * x));
           report = measureShape(ch, audio.sampleRate, {
             toneHz: o.tone,
             k: o.k,
             mask,
             unitMs: o.wpm !== undefined ? 1200 / o.wpm : undefined,
             chirpWindowMs: o.chirpWindow,
-            onProgress: (x) => progress.update(x),
+            onProgress: (x) => progress.update(0.1 + 0.9 * x),
           });
           const note = stretchNote(fromS, ch.length / audio.sampleRate, totalS);
           if (note) {
