@@ -75,10 +75,12 @@ describe('bad inputs through the command line: `keyform: <file>: <why>` on stder
     ['a folder given as a file', folder, 'is a folder, not a file'],
     ['an empty file', empty, 'empty file'],
     ['a text file named .wav', textWav, 'not a WAV file (no RIFF/WAVE header)'],
-  ])('keyform decode with %s', async (_what, path, why) => {
-    const r = await cli(['decode', path]);
-    expect(r.code).toBe(2);
-    expect(r.out).toBe('');
-    expect(r.err).toBe(`keyform: ${path}: ${why}\n`);
+  ])('keyform decode, timing and shape with %s', async (_what, path, why) => {
+    for (const command of ['decode', 'timing', 'shape']) {
+      const r = await cli([command, path]);
+      expect(r.code).toBe(2);
+      expect(r.out).toBe('');
+      expect(r.err).toBe(`keyform: ${path}: ${why}\n`);
+    }
   });
 });

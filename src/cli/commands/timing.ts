@@ -36,7 +36,8 @@ interface Observed {
 
 async function readObserved(path: string, o: TimingCliOptions, ctx: CommandContext): Promise<Observed> {
   const head = (await peekFile(path, 512)).toString('latin1');
-  if (head.startsWith('RIFF')) {
+  // A .wav name is read as audio whatever it holds, so that a file that is not one says so.
+  if (head.startsWith('RIFF') || /\.wave?$/i.test(path)) {
     // Streamed through the receiver chunk by chunk: memory stays bounded for long recordings.
     const audio = await openAudio(path, { reuseChunks: true });
     const progress = createProgress(ctx.io, { label: path, audioSeconds: audio.durationMs !== null ? audio.durationMs / 1000 : null });
