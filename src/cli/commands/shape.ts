@@ -166,6 +166,7 @@ Examples:
   keyform shape recordings/beacon-after-fix.wav
   keyform shape q7zkt-tx.wav --tone 700 --plot q7zkt-shape.svg
   keyform shape q7zkt-tx.wav --k 3 --mask my-mask.csv --json
+  keyform shape q7zkt-b-overnight.wav --from 1800 --seconds 120
   keyform shape --predict --wpm 25 --rise 5 --edge raised-cosine
   keyform shape --predict --sweep --wpm 30 --edge linear
 
