@@ -45,8 +45,23 @@ export function timeUnitFromHeader(name: string): CaptureTimeUnit | null {
   return 's';
 }
 
-/** csv-parse settings shared by the string and the streaming reader (one record per line). */
-const CSV_OPTIONS = { trim: true, relax_column_count: true, bom: true } as const;
+/**
+ * csv-parse settings shared by the string and the streaming reader (one record per line). Lines may
+ * end in LF, CRLF or CR, mixed within a file (an export edited on another system): left to guess from
+ * the first line, the parser would take a file whose first line ends in CRLF and the rest in LF as one
+ * long record.
+ */
+const CSV_OPTIONS = { trim: true, relax_column_count: true, bom: true, record_delimiter: ['\r\n', '\n', '\r'] };
+
+/**
+ * A value from the file as a message shows it: on one line (line breaks and other control characters
+ * written as escapes) and at most 40 characters.
+ * @example shown('1\n#') //=> '1\\n#'
+ */
+export function shown(value: string): string {
+  const escaped = value.replace(/[\u0000-\u001f\u007f]/g, (c) => (c === '\n' ? '\\n' : c === '\r' ? '\\r' : c === '\t' ? '\\t' : `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`));
+  return escaped.length > 40 ? `${escaped.slice(0, 39)}…` : escaped;
+}
 
 /**
  * Turns capture rows into key-down intervals one row at a time, so a file can be streamed with
@@ -94,7 +109,7 @@ class CaptureRows {
     const column = this.options.column;
     if (column !== undefined) {
       this.stateCol = header.findIndex((h) => h.toLowerCase() === column.toLowerCase());
-      if (this.stateCol < 0) throw new InputError(`${this.name}: no column '${column}' (columns: ${header.join(', ')})`);
+      if (this.stateCol < 0) throw new InputError(`${this.name}: no column '${shown(column)}' (columns: ${header.map(shown).join(', ')})`);
     } else {
       this.stateCol = header.findIndex((h) => /^(state|key|level|value)$/i.test(h));
       if (this.stateCol < 0) this.stateCol = header.findIndex((_, i) => i !== this.timeCol);
@@ -108,8 +123,8 @@ class CaptureRows {
     this.rows++;
     const timeText = record[this.timeCol] ?? '';
     const t = Number(timeText) * MS_PER[this.timeUnit];
-    if (timeText === '' || !Number.isFinite(t)) throw new InputError(`${where}: time '${timeText}' is not a number`);
-    if (t < this.prev) throw new InputError(`${where}: time ${timeText} goes back (the previous row is later); rows must be in time order`);
+    if (timeText === '' || !Number.isFinite(t)) throw new InputError(`${where}: time '${shown(timeText)}' is not a number`);
+    if (t < this.prev) throw new InputError(`${where}: time ${shown(timeText)} goes back (the previous row is later); rows must be in time order`);
     this.prev = t;
     const raw = (record[this.stateCol] ?? '').toLowerCase();
     let isDown: boolean;
@@ -117,7 +132,7 @@ class CaptureRows {
     else if (raw === 'up') isDown = false;
     else if (DOWN_WORDS.has(raw)) isDown = !this.options.activeLow;
     else if (UP_WORDS.has(raw)) isDown = Boolean(this.options.activeLow);
-    else throw new InputError(`${where}: unknown state '${record[this.stateCol] ?? ''}' (expected 1/0, high/low, on/off or down/up)`);
+    else throw new InputError(`${where}: unknown state '${shown(record[this.stateCol] ?? '')}' (expected 1/0, high/low, on/off or down/up)`);
     if (this.down === null && isDown) this.firstDownAtStart = true;
     if (isDown && this.down !== true) this.downSince = t;
     if (!isDown && this.down === true && t > this.downSince) this.marks.push([this.downSince, t]);
@@ -130,9 +145,9 @@ class CaptureRows {
     const start = Number(startText);
     const dur = Number(durText);
     if (!Number.isFinite(start) || !Number.isFinite(dur) || !startText || !durText) {
-      throw new InputError(`${where}: startMs and durationMs must be numbers (got '${startText ?? ''}', '${durText ?? ''}')`);
+      throw new InputError(`${where}: startMs and durationMs must be numbers (got '${shown(startText ?? '')}', '${shown(durText ?? '')}')`);
     }
-    if (state !== 'down' && state !== 'up' && state !== 'ptt') throw new InputError(`${where}: unknown state '${state ?? ''}' (expected down, up or ptt)`);
+    if (state !== 'down' && state !== 'up' && state !== 'ptt') throw new InputError(`${where}: unknown state '${shown(state ?? '')}' (expected down, up or ptt)`);
     if (state !== 'down') return;
     if (dur <= 0) throw new InputError(`${where}: a key-down must last longer than 0 ms (got ${dur})`);
     if (start < this.prev) throw new InputError(`${where}: starts at ${start} ms, before the previous key-down ends (${this.prev} ms)`);
@@ -154,7 +169,7 @@ class CaptureRows {
 }
 
 const csvError = (name: string, err: unknown): InputError =>
-  err instanceof InputError ? err : new InputError(`${name}: not a readable CSV file (${(err as Error).message})`);
+  err instanceof InputError ? err : new InputError(`${name}: not a readable CSV file (${(err as Error).message.split('\n')[0]})`);
 
 /**
  * Reads a logic-capture CSV held in memory into key-down intervals.

@@ -82,6 +82,15 @@ describe('logic-capture CSV', () => {
     expect(bad('0,0\n10,1\n')).toMatch(/^keyer\.csv: row 1: the first row must name the columns/);
     expect(bad('time_ms,state\nabc,1\n')).toMatch(/^keyer\.csv: row 2: time 'abc' is not a number/);
     expect(bad('')).toBe('keyer.csv: empty capture');
+    // A value with a line break in it (a quoted field) is shown on one line, escaped; long ones cut.
+    expect(bad('time_ms,state\n0,"1\n#"\n')).toBe("keyer.csv: row 2: unknown state '1\\n#' (expected 1/0, high/low, on/off or down/up)");
+    expect(bad(`time_ms,state\n0,${'x'.repeat(100)}\n`)).toBe(`keyer.csv: row 2: unknown state '${'x'.repeat(39)}…' (expected 1/0, high/low, on/off or down/up)`);
+  });
+
+  it('reads line endings mixed within a file (CRLF header, LF rows, a lone CR)', () => {
+    // Found by the capture fuzz: with the ending guessed from the first line, the rows were one record.
+    const cap = parseCapture('time_ms,state\r\n0,1\n60,0\r120,1\r\n300,0\n', { name: 'k.csv' });
+    expect(cap.marks).toEqual([[0, 60], [120, 300]]);
   });
 
   it('warns when the capture ends with the key down', () => {
