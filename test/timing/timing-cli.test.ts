@@ -112,6 +112,21 @@ describe('keyform timing', () => {
     expect(j.alignment.maxErrorMs).toBeCloseTo(0, 6);
   });
 
+  it('answers JSON inputs that are not a timeline with one line and exit 2 (null, a list, cut short)', async () => {
+    for (const [name, text, why] of [
+      ['null.json', 'null', 'a JSON input needs a "marks" list of [startMs, endMs]'],
+      ['list.json', '[1, 2]', 'a JSON input needs a "marks" list of [startMs, endMs]'],
+      ['cut.json', '{"marks":', 'not valid JSON (Unexpected end of JSON input)'],
+    ] as const) {
+      const path = join(dir, name);
+      writeFileSync(path, text);
+      const run = await runCli(['timing', path]);
+      expect(run.code).toBe(2);
+      expect(run.stderr).toBe(`keyform: ${path}: ${why}\n`);
+      expect(run.stdout).toBe('');
+    }
+  });
+
   it('refuses two intended messages and a broken plan with exit code 2', async () => {
     const twice = await runCli(['timing', clean, '--expect', MESSAGE, '--expect-file', clean]);
     expect(twice.code).toBe(2);

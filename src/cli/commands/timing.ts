@@ -51,7 +51,7 @@ async function readObserved(path: string, o: TimingCliOptions, ctx: CommandConte
       warnings: [...audio.warnings, ...(channelNote ? [channelNote] : []), ...result.warnings],
     };
   }
-  if (head.trimStart().startsWith('{')) {
+  if (head.trimStart().startsWith('{') || /\.json$/i.test(path)) {
     const text = (await readInputFile(path)).toString('utf8');
     let value: unknown;
     try {
@@ -59,7 +59,7 @@ async function readObserved(path: string, o: TimingCliOptions, ctx: CommandConte
     } catch (err) {
       throw new InputError(`${path}: not valid JSON (${(err as Error).message})`);
     }
-    const marks = (value as { marks?: unknown }).marks;
+    const marks = typeof value === 'object' && value !== null ? (value as { marks?: unknown }).marks : undefined;
     if (!Array.isArray(marks)) throw new InputError(`${path}: a JSON input needs a "marks" list of [startMs, endMs]`);
     const plan = planElementsFromJson({ unitMs: 1, ...(value as object), characters: [] }, path);
     return { kind: 'json', marks: plan.marks, details: {}, warnings: [] };
