@@ -1,4 +1,5 @@
 import { existsSync, statSync } from 'node:fs';
+import { dirname } from 'node:path';
 import { readFile } from 'node:fs/promises';
 import writeFileAtomic from 'write-file-atomic';
 import { InputError } from '../core/errors.js';
@@ -19,8 +20,26 @@ export async function writeOutputFile(path: string, data: string | Buffer, optio
   try {
     await writeFileAtomic(path, data);
   } catch (err) {
-    throw new InputError(`${path}: cannot write (${(err as NodeJS.ErrnoException).code ?? (err as Error).message})`);
+    throw cannotWrite(path, err);
   }
+}
+
+/**
+ * The one-line error for an output file that could not be written, with the reason in words.
+ * @example cannotWrite('out/plan.json', { code: 'ENOENT' }).message //=> "out/plan.json: cannot write: no folder 'out'"
+ */
+export function cannotWrite(path: string, err: unknown): InputError {
+  const code = (err as NodeJS.ErrnoException)?.code;
+  const why: Record<string, string> = {
+    ENOENT: `no folder '${dirname(path)}'`,
+    ENOTDIR: `'${dirname(path)}' is not a folder`,
+    EACCES: 'permission denied',
+    EPERM: 'permission denied',
+    EISDIR: 'it is a folder',
+    EROFS: 'read-only file system',
+    ENOSPC: 'no space left on the device',
+  };
+  return new InputError(`${path}: cannot write: ${(code && why[code]) ?? code ?? String((err as Error)?.message ?? err)}`);
 }
 
 /** Reads a whole input file, turning file-system failures into one-line input errors. */

@@ -84,6 +84,22 @@ describe('keyform encode', () => {
     expect(JSON.parse(readFileSync(out, 'utf8')).text).toBe('T');
   });
 
+  it('says in words why an output file cannot be written (one line, exit 2, and batch reports the same)', async () => {
+    const noFolder = join(dir, 'no-such-folder', 'plan.json');
+    const r1 = await runCli(['encode', 'E', '--out', noFolder]);
+    expect(r1.code).toBe(2);
+    expect(r1.stderr).toBe(`keyform: ${noFolder}: cannot write: no folder '${join(dir, 'no-such-folder')}'\n`);
+    const notFolder = join(dir, 'plain-file');
+    writeFileSync(notFolder, 'x');
+    const r2 = await runCli(['encode', 'E', '--out', join(notFolder, 'plan.json')]);
+    expect(r2.stderr).toBe(`keyform: ${join(notFolder, 'plan.json')}: cannot write: '${notFolder}' is not a folder\n`);
+    const r3 = await runCli(['encode', 'E', '--out', dir, '--force']);
+    expect(r3.stderr).toBe(`keyform: ${dir}: cannot write: it is a folder\n`);
+    const r4 = await runCli(['batch', 'recordings/beacon-weak.wav', '--out', join(dir, 'nowhere', 'report.csv')]);
+    expect(r4.code).toBe(2);
+    expect(r4.stderr).toBe(`keyform: ${join(dir, 'nowhere', 'report.csv')}: cannot write: no folder '${join(dir, 'nowhere')}'\n`);
+  });
+
   it('reads the message from a file', async () => {
     const src = join(dir, 'msg.txt');
     writeFileSync(src, 'q7zkt\ntest\n');

@@ -5,6 +5,7 @@ import { fileURLToPath } from 'node:url';
 import { setFlagsFromString } from 'node:v8';
 import type { Command } from 'commander';
 import { InputError } from '../../core/errors.js';
+import { cannotWrite } from '../../io/files.js';
 import { formatJson } from '../../io/json.js';
 import { BATCH_COLUMNS, errorLine, errorRow, type BatchRow } from '../analyze-recording.js';
 import type { BatchTask } from '../batch-worker.js';
@@ -134,7 +135,7 @@ export class ReportWriter {
     try {
       this.fd = openSync(this.partialPath, 'w');
     } catch (err) {
-      throw new InputError(`${path}: cannot write (${(err as NodeJS.ErrnoException).code ?? (err as Error).message})`);
+      throw cannotWrite(path, err);
     }
     if (this.format === 'csv') this.write(csvHeader());
   }
