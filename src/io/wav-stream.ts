@@ -448,6 +448,9 @@ export class RawPcmParser {
   readonly name: string;
   readonly format: PcmFormat & { encoding: string };
   private readonly deinterleaver: PcmDeinterleaver;
+  /** The first bytes of the input, to notice a WAV file read as raw PCM. */
+  private readonly head = new Uint8Array(12);
+  private headBytes = 0;
 
   /** @param options - Layout; `reuse`: see PcmDeinterleaver (each chunk valid until the next push). */
   constructor(name: string, options: { encoding: RawEncoding; sampleRate: number; channelCount: number; reuse?: boolean }) {
@@ -458,6 +461,11 @@ export class RawPcmParser {
   }
 
   push(bytes: Uint8Array): Float32Array[][] {
+    if (this.headBytes < 12) {
+      const n = Math.min(12 - this.headBytes, bytes.length);
+      this.head.set(bytes.subarray(0, n), this.headBytes);
+      this.headBytes += n;
+    }
     const chunk = this.deinterleaver.push(bytes);
     return chunk ? [chunk] : [];
   }
@@ -465,6 +473,10 @@ export class RawPcmParser {
   finish(): { warnings: string[] } {
     const warnings: string[] = [];
     if (this.deinterleaver.framesOut === 0 && this.deinterleaver.pendingBytes === 0) throw new InputError(`${this.name}: no audio (empty input)`);
+    const ascii = (a: number, b: number): string => String.fromCharCode(...this.head.subarray(a, b));
+    if (this.headBytes === 12 && ascii(0, 4) === 'RIFF' && ascii(8, 12) === 'WAVE') {
+      warnings.push(`${this.name}: starts with a WAV header but was read as raw PCM (--raw): its header was taken for samples and its own rate and layout were not used; leave out --raw, --rate and --channels to read it as a WAV`);
+    }
     const partial = this.deinterleaver.pendingBytes;
     if (partial > 0) warnings.push(`${this.name}: ${partial} trailing bytes do not make a whole frame; ignored`);
     if (this.deinterleaver.nonFiniteCount > 0) {

@@ -170,6 +170,19 @@ describe('raw PCM', () => {
     expect(parser.finish().warnings).toEqual([]);
   });
 
+  it('warns when what it reads as raw PCM is a WAV file (its header arriving in pieces)', () => {
+    const wav = encodeWav({ sampleRate: 8000, channels: [new Float32Array(400).fill(0.25)], encoding: 's16' });
+    const parser = new RawPcmParser('-', { encoding: 's16le', sampleRate: 8000, channelCount: 1 });
+    for (let i = 0; i < wav.length; i += 5) parser.push(wav.subarray(i, i + 5));
+    const { warnings } = parser.finish();
+    expect(warnings).toHaveLength(1);
+    expect(warnings[0]).toMatch(/^-: starts with a WAV header but was read as raw PCM \(--raw\)/);
+    // Raw samples that are not a header: no warning.
+    const raw = new RawPcmParser('-', { encoding: 's16le', sampleRate: 8000, channelCount: 1 });
+    raw.push(wav.subarray(44));
+    expect(raw.finish().warnings).toEqual([]);
+  });
+
   it('matches sox: the same tone written as raw s16le and as WAV reads to the same samples', async () => {
     const raw = join(dir, 'tone.raw');
     const wav = join(dir, 'tone.wav');
