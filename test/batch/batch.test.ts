@@ -1,11 +1,11 @@
 import { spawn, spawnSync } from 'node:child_process';
-import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, symlinkSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parse } from 'csv-parse/sync';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { BATCH_COLUMNS, type BatchRow } from '../../src/cli/analyze-recording.js';
-import { formatRow, csvHeader } from '../../src/cli/commands/batch.js';
+import { collectInputs, formatRow, csvHeader } from '../../src/cli/commands/batch.js';
 import { main } from '../../src/cli/main.js';
 import type { CliIo } from '../../src/cli/io.js';
 import { synthesizeTone } from '../../src/core/signal/synth.js';
@@ -119,10 +119,26 @@ describe('keyform batch', () => {
     mkdirSync(empty);
     const e = await run(['batch', empty]);
     expect(e.code).toBe(2);
-    expect(e.err).toBe(`keyform: ${empty}: no .wav files in this folder\n`);
+    expect(e.err).toBe(`keyform: ${empty}: no .wav files in this folder (--recursive looks in its subfolders too)\n`);
     const bad = await run(['batch', folder, '--out', join(root, 'report.txt')]);
     expect(bad.code).toBe(2);
     expect(bad.err).toMatch(/must end in \.csv or \.jsonl/);
+  });
+
+  it('takes the recordings of subfolders with --recursive, sorted by path; never follows a folder link', async () => {
+    const lab = join(root, 'lab');
+    for (const d of ['2026-11-30', '2026-12-01/late', 'empty']) mkdirSync(join(lab, d), { recursive: true });
+    for (const f of ['b.wav', '2026-11-30/a.WAV', '2026-12-01/late/c.wav', '2026-12-01/notes.txt']) writeFileSync(join(lab, f), 'x');
+    symlinkSync(lab, join(lab, '2026-12-01', 'loop')); // a link back up: must not be walked
+    expect(collectInputs([lab])).toEqual([join(lab, 'b.wav')]);
+    expect(collectInputs([lab], { recursive: true })).toEqual(
+      ['2026-11-30/a.WAV', '2026-12-01/late/c.wav', 'b.wav'].map((f) => join(lab, f)),
+    );
+    const only = join(lab, 'empty');
+    expect(() => collectInputs([only], { recursive: true })).toThrow(`${only}: no .wav files in this folder or below it`);
+    // Through the command: the same files become rows (here all unreadable, one line each).
+    const r = await run(['batch', '-r', lab, '--json', '--no-shape']);
+    expect((JSON.parse(r.out) as { rows: BatchRow[] }).rows.map((x) => x.file)).toEqual(collectInputs([lab], { recursive: true }));
   });
 
   it('quotes CSV fields so that a standard parser reads back text with commas, quotes and spaces', () => {

@@ -23,18 +23,22 @@ export interface BatchCliOptions {
   shapeSeconds: number;
   shape: boolean;
   timeout?: number;
+  recursive?: boolean;
 }
 
 export type ReportFormat = 'csv' | 'jsonl';
 
-/** Audio files a folder contributes (by extension, sorted, not recursive). */
+/** Audio files a folder contributes (by extension, any case). */
 const AUDIO_EXTENSIONS = new Set(['.wav', '.wave']);
 
 /**
- * Expands FOLDER|FILES… into a file list: a folder gives its .wav files (sorted, not recursive);
- * a file is taken as it is (a bad one becomes a row with its error). A folder without WAVs is an error.
+ * Expands FOLDER|FILES… into a file list: a folder gives its .wav files, sorted by path, and with
+ * `recursive` those of its subfolders too (symbolic links to folders are not followed, so a link
+ * loop cannot trap it); a file is taken as it is (a bad one becomes a row with its error). A folder
+ * without WAVs is an error.
+ * @example collectInputs(['captures'], { recursive: true }) //=> ['captures/2026-11-30/a.wav', 'captures/b.wav', …]
  */
-export function collectInputs(args: readonly string[]): string[] {
+export function collectInputs(args: readonly string[], options: { recursive?: boolean } = {}): string[] {
   const files: string[] = [];
   for (const arg of args) {
     let isDir = false;
@@ -47,21 +51,41 @@ export function collectInputs(args: readonly string[]): string[] {
       files.push(arg);
       continue;
     }
-    let entries;
-    try {
-      entries = readdirSync(arg, { withFileTypes: true });
-    } catch (err) {
-      const code = (err as NodeJS.ErrnoException).code;
-      throw new InputError(`${arg}: cannot list this folder (${code === 'EACCES' ? 'permission denied' : (code ?? 'error')})`);
-    }
-    const inside = entries
-      .filter((e) => !e.isDirectory() && AUDIO_EXTENSIONS.has(extname(e.name).toLowerCase()))
-      .map((e) => join(arg, e.name))
-      .sort();
-    if (inside.length === 0) throw new InputError(`${arg}: no .wav files in this folder`);
+    const inside = audioFilesIn(arg, options.recursive ?? false).sort();
+    if (inside.length === 0) throw new InputError(`${arg}: no .wav files in this folder${options.recursive ? ' or below it' : ' (--recursive looks in its subfolders too)'}`);
     files.push(...inside);
   }
   return files;
+}
+
+/** The audio files in `folder` (and below it when `recursive`), unsorted. */
+function audioFilesIn(folder: string, recursive: boolean): string[] {
+  let entries;
+  try {
+    entries = readdirSync(folder, { withFileTypes: true });
+  } catch (err) {
+    const code = (err as NodeJS.ErrnoException).code;
+    throw new InputError(`${folder}: cannot list this folder (${code === 'EACCES' ? 'permission denied' : (code ?? 'error')})`);
+  }
+  const out: string[] = [];
+  for (const e of entries) {
+    const path = join(folder, e.name);
+    if (e.isDirectory()) {
+      if (recursive) out.push(...audioFilesIn(path, true));
+    } else if (AUDIO_EXTENSIONS.has(extname(e.name).toLowerCase()) && (e.isFile() || isFileLink(path))) {
+      out.push(path);
+    }
+  }
+  return out;
+}
+
+/** A symbolic link (or other entry) that leads to a file. */
+function isFileLink(path: string): boolean {
+  try {
+    return statSync(path).isFile();
+  } catch {
+    return false;
+  }
 }
 
 /** Audio per worker when --jobs is not given [bytes]: a worker costs about a second of compiling before it runs at full speed. */
@@ -243,7 +267,7 @@ export function workerPath(): string {
 export function registerBatch(program: Command, ctx: CommandContext): void {
   program
     .command('batch')
-    .argument('<inputs...>', 'WAV files and/or folders (a folder gives its .wav files, not recursive)')
+    .argument('<inputs...>', 'WAV files and/or folders (a folder gives its .wav files; with -r those of its subfolders too)')
     .summary('decode, time and shape-check every recording in a folder, in parallel')
     .description(
       'Analyse many recordings in parallel worker threads: decoded text, speed, tone, SNR, rise time, ' +
@@ -251,6 +275,7 @@ export function registerBatch(program: Command, ctx: CommandContext): void {
         'Rows appear as files complete; with --out they are written to OUT.partial and moved to OUT at the end ' +
         '(also after Ctrl-C, which stops the batch and keeps the rows done so far).',
     )
+    .option('-r, --recursive', 'also take the .wav files in the folders\' subfolders (sorted by path)')
     .option(
       '-j, --jobs <n>',
       `worker threads (1–64; default: CPU count, here ${availableParallelism()}, but one per ${BYTES_PER_DEFAULT_WORKER / 1024 / 1024} MiB of audio at most)`,
@@ -274,6 +299,7 @@ Exit code: 0 all files read, 1 some file gave an error, 2 bad usage, 130 interru
 Examples:
   keyform batch recordings/
   keyform batch captures/ --jobs 2 --out report.csv
+  keyform batch -r lab-2026-11/ --out november.jsonl
   keyform batch q7zkt-*.wav --out report.jsonl --force --no-shape
 `,
     )
@@ -297,7 +323,7 @@ export function compileOnWorkerThreads(): void {
 
 async function runBatch(inputs: string[], o: BatchCliOptions, ctx: CommandContext): Promise<void> {
   const { io } = ctx;
-  const files = collectInputs(inputs);
+  const files = collectInputs(inputs, { recursive: o.recursive });
   const sizes = files.map(fileSize);
   const jobs = Math.min(o.jobs ?? defaultJobs(sizes, availableParallelism()), files.length);
   // Several workers: the largest files first, so that the last file to finish is a short one and
