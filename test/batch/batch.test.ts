@@ -93,7 +93,7 @@ describe('keyform batch', () => {
 
     const again = await run(['batch', folder, '--out', out]);
     expect(again.code).toBe(2);
-    expect(again.err).toBe(`keyform: ${out}: already exists (use --force to replace it)\n`);
+    expect(again.err).toBe(`keyform: ${out}: already exists (use --force to replace it, or --resume to go on with it)\n`);
     expect(readFileSync(out, 'utf8')).toBe(text);
 
     writeFileSync(out, 'old');

@@ -37,7 +37,7 @@ describe('no command replaces an output file without --force', () => {
     writeFileSync(path, 'kept');
     const refused = await run(argsFor(path));
     expect(refused.code).toBe(2);
-    expect(refused.err).toContain(`keyform: ${path}: already exists (use --force to replace it)`);
+    expect(refused.err).toContain(`keyform: ${path}: already exists (use --force to replace it`);
     expect(readFileSync(path, 'utf8')).toBe('kept');
     const forced = await run([...argsFor(path), '--force']);
     expect(forced.code).toBe(0);

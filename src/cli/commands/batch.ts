@@ -1,9 +1,10 @@
-import { closeSync, existsSync, fsyncSync, linkSync, openSync, readdirSync, renameSync, statSync, unlinkSync, writeSync } from 'node:fs';
+import { closeSync, existsSync, fsyncSync, linkSync, openSync, readdirSync, readFileSync, renameSync, statSync, unlinkSync, writeSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
 import { basename, dirname, extname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { setFlagsFromString } from 'node:v8';
 import type { Command } from 'commander';
+import { parse } from 'csv-parse/sync';
 import { InputError } from '../../core/errors.js';
 import { cannotWrite } from '../../io/files.js';
 import { formatJson } from '../../io/json.js';
@@ -24,6 +25,7 @@ export interface BatchCliOptions {
   shape: boolean;
   timeout?: number;
   recursive?: boolean;
+  resume?: boolean;
 }
 
 export type ReportFormat = 'csv' | 'jsonl';
@@ -135,6 +137,60 @@ export function reportFormat(path: string): ReportFormat {
   throw new InputError(`--out ${path}: the report must end in .csv or .jsonl`);
 }
 
+/** The rows of an earlier report that `--resume` keeps, as the report's own lines. */
+export interface EarlierReport {
+  /** Where they were read from (the report, or its .partial when the run was killed before it ended). */
+  path: string;
+  /** The files they cover. */
+  files: Set<string>;
+  /** Their lines, newline included, to be copied as they are. */
+  lines: string[];
+  /** Rows left out because they are errors: those files are tried again. */
+  retried: number;
+}
+
+/**
+ * Reads an earlier batch report (CSV or JSON Lines, by the name of `reportPath`) for `--resume`:
+ * every row but the errors is kept. A report that is not keyform's is a one-line error.
+ */
+export function readEarlierReport(path: string, reportPath: string): EarlierReport {
+  const text = readFileSync(path, 'utf8');
+  const kept: EarlierReport = { path, files: new Set(), lines: [], retried: 0 };
+  const notOurs = (why: string): InputError => new InputError(`${path}: not a keyform batch report to resume (${why}); give another --out, or --force to start afresh`);
+  const take = (file: unknown, verdict: unknown, line: string): void => {
+    if (typeof file !== 'string' || typeof verdict !== 'string') throw notOurs('a row without file and verdict');
+    if (verdict === 'error') {
+      kept.retried++;
+      return;
+    }
+    kept.files.add(file);
+    kept.lines.push(line.endsWith('\n') ? line : `${line}\n`);
+  };
+  if (reportFormat(reportPath) === 'jsonl') {
+    for (const line of text.split('\n')) {
+      if (line.trim() === '') continue;
+      let row: Partial<BatchRow>;
+      try {
+        row = JSON.parse(line) as Partial<BatchRow>;
+      } catch {
+        throw notOurs('a line that is not JSON');
+      }
+      take(row?.file, row?.verdict, line);
+    }
+    return kept;
+  }
+  if (text.trim() === '') return kept;
+  if (!text.startsWith(csvHeader())) throw notOurs('its first line is not the report header');
+  let records: { record: Record<string, string>; raw: string }[];
+  try {
+    records = parse(text, { columns: true, raw: true, relax_column_count: true }) as typeof records;
+  } catch (err) {
+    throw notOurs((err as Error).message.split('\n')[0]!);
+  }
+  for (const { record, raw } of records) take(record.file, record.verdict, raw);
+  return kept;
+}
+
 /**
  * A report written row by row as files complete, then put in place in one step:
  * rows are appended (and flushed) to `OUT.partial`, which is renamed to OUT at the end, also after
@@ -150,11 +206,12 @@ export class ReportWriter {
   private fd: number | null;
   private readonly force: boolean;
 
-  constructor(path: string, force: boolean) {
+  /** @param kept - Lines of an earlier report to start with (`--resume`); the report then replaces it. */
+  constructor(path: string, force: boolean, kept: readonly string[] | null = null) {
     this.path = path;
     this.format = reportFormat(path);
-    this.force = force;
-    if (!force && existsSync(path)) throw new InputError(`${path}: already exists (use --force to replace it)`);
+    this.force = force || kept !== null;
+    if (!this.force && existsSync(path)) throw new InputError(`${path}: already exists (use --force to replace it, or --resume to go on with it)`);
     this.partialPath = join(dirname(path), `${basename(path)}.partial`);
     try {
       this.fd = openSync(this.partialPath, 'w');
@@ -162,6 +219,8 @@ export class ReportWriter {
       throw cannotWrite(path, err);
     }
     if (this.format === 'csv') this.write(csvHeader());
+    for (const line of kept ?? []) this.write(line);
+    this.rows = kept?.length ?? 0;
   }
 
   private write(text: string): void {
@@ -283,6 +342,7 @@ export function registerBatch(program: Command, ctx: CommandContext): void {
     )
     .option('-o, --out <file>', 'write the report to FILE: .csv (one row per file) or .jsonl (one JSON object per line, with warnings)')
     .option('--force', 'replace --out if it exists')
+    .option('--resume', 'go on with an existing --out report: keep its rows and analyse only the files it lacks (files that ended in an error are tried again)')
     .option('--json', 'print all rows and the summary as one JSON document on stdout')
     .option('--tone <hz>', 'carrier tone of every recording (Hz, 100–20000; default: found per file)', numberIn('--tone', 100, 20_000))
     .option('--channel <n>', 'channel to use, 1 = first (default: the one with the strongest keyed tone)', numberIn('--channel', 1, 256, { integer: true }))
@@ -300,6 +360,7 @@ Examples:
   keyform batch recordings/
   keyform batch captures/ --jobs 2 --out report.csv
   keyform batch -r lab-2026-11/ --out november.jsonl
+  keyform batch -r lab-2026-11/ --out november.jsonl --resume     (after Ctrl-C: go on)
   keyform batch q7zkt-*.wav --out report.jsonl --force --no-shape
 `,
     )
@@ -323,7 +384,25 @@ export function compileOnWorkerThreads(): void {
 
 async function runBatch(inputs: string[], o: BatchCliOptions, ctx: CommandContext): Promise<void> {
   const { io } = ctx;
-  const files = collectInputs(inputs, { recursive: o.recursive });
+  const all = collectInputs(inputs, { recursive: o.recursive });
+  let earlier: EarlierReport | null = null;
+  if (o.resume) {
+    if (!o.out) throw new InputError('--resume needs --out REPORT: the report to go on with');
+    if (o.force) throw new InputError('give --resume or --force, not both');
+    reportFormat(o.out);
+    const partial = join(dirname(o.out), `${basename(o.out)}.partial`);
+    // The report, or what a run killed before it could finish left in its .partial.
+    const from = existsSync(o.out) ? o.out : existsSync(partial) ? partial : null;
+    if (from) earlier = readEarlierReport(from, o.out);
+  }
+  const files = earlier ? all.filter((f) => !earlier.files.has(f)) : all;
+  if (earlier) {
+    ctx.warn(
+      `resuming ${earlier.path}: ${earlier.lines.length} row${earlier.lines.length === 1 ? '' : 's'} kept` +
+        `${earlier.retried ? `, ${earlier.retried} error${earlier.retried === 1 ? '' : 's'} to try again` : ''}; ${files.length} of ${all.length} files to analyse`,
+    );
+    if (files.length === 0) return;
+  }
   const sizes = files.map(fileSize);
   const jobs = Math.min(o.jobs ?? defaultJobs(sizes, availableParallelism()), files.length);
   // Several workers: the largest files first, so that the last file to finish is a short one and
@@ -331,7 +410,7 @@ async function runBatch(inputs: string[], o: BatchCliOptions, ctx: CommandContex
   const queue = jobs > 1 ? files.map((f, i) => ({ f, size: sizes[i]! })).sort((a, b) => b.size - a.size).map((x) => x.f) : files;
   const filename = workerPath();
   if (jobs >= availableParallelism()) compileOnWorkerThreads();
-  const writer = o.out ? new ReportWriter(o.out, Boolean(o.force)) : null;
+  const writer = o.out ? new ReportWriter(o.out, Boolean(o.force), earlier ? earlier.lines : null) : null;
   const { Piscina } = await import('piscina');
   const pool = new Piscina<BatchTask, BatchRow>({ filename, minThreads: jobs, maxThreads: jobs, idleTimeout: 1000 });
   const abort = new AbortController();
