@@ -5,10 +5,10 @@
  * bad file: the error goes in the row.
  */
 import { InputError } from '../core/errors.js';
-import { measureShape } from '../core/measure/shape.js';
+import { defaultShapeWindowS, measureShape, stretchNote, type ShapeOptions, type ShapeReport } from '../core/measure/shape.js';
 import { measureTiming } from '../core/measure/timing.js';
 import { pickChannel, StreamDecoder, type DecodeResult } from '../core/receive/index.js';
-import { concatChunks, keepableChunk, openAudio, type AudioSource, type OpenAudioOptions } from '../io/audio-source.js';
+import { concatChunks, keepableChunk, openAudio, readChannelWindow, type AudioSource, type OpenAudioOptions } from '../io/audio-source.js';
 
 /** One line of a batch report. Numbers are null where they could not be measured. */
 export interface BatchRow {
@@ -270,4 +270,32 @@ async function analyzeInto(row: BatchRow, path: string, options: AnalyzeOptions)
       row.warnings.push(`shape: ${errorLine(err)}`);
     }
   }
+}
+
+/** A recording's keying shape as measured from a stretch of it. */
+export interface FileShape {
+  report: ShapeReport;
+  /** Length of the stretch asked for [s] (the default when none was given). */
+  seconds: number;
+  /** Where the stretch lies, and a sentence saying so, when it is not the whole recording. */
+  note: ReturnType<typeof stretchNote>;
+}
+
+/**
+ * Measures the keying shape of a recording file as `keyform shape` and the app do: streamed, with only
+ * the stretch from `fromS` kept (`seconds`, by default defaultShapeWindowS), so a long recording costs
+ * no more memory than that stretch. Reading takes the first tenth of the progress.
+ * @param channel - 0-based (default 0).
+ * @example (await measureShapeOfFile('recordings/beacon-after-fix.wav')).report.riseMs.median //=> ≈ 5
+ */
+export async function measureShapeOfFile(
+  path: string,
+  options: { channel?: number; fromS?: number; seconds?: number; shape?: Omit<ShapeOptions, 'onProgress'>; onProgress?: (fraction: number) => void } = {},
+): Promise<FileShape> {
+  const progress = options.onProgress ?? ((): void => {});
+  const audio = await openAudio(path, { streamAboveBytes: 0, reuseChunks: true });
+  const seconds = options.seconds ?? defaultShapeWindowS(audio.sampleRate);
+  const { samples, fromS, totalS } = await readChannelWindow(audio, options.channel ?? 0, options.fromS ?? 0, seconds, (x) => progress(0.1 * x));
+  const report = measureShape(samples, audio.sampleRate, { ...options.shape, onProgress: (x) => progress(0.1 + 0.9 * x) });
+  return { report, seconds, note: stretchNote(fromS, samples.length / audio.sampleRate, totalS) };
 }

@@ -29,11 +29,7 @@ export interface AlignModule {
 }
 
 export interface ShapeModule {
-  measureShape(samples: Float32Array, sampleRate: number, options?: Record<string, unknown>): { warnings: string[] } & Record<string, unknown>;
-  /** How much of a recording the analysis is given by default [s]. */
-  defaultShapeWindowS?(sampleRate: number): number;
-  /** The note for a report of a stretch that is not the whole recording. */
-  stretchNote?(fromS: number, lengthS: number, totalS: number | null): { text: string } | null;
+  measureShape(samples: Float32Array, sampleRate: number, options?: Record<string, unknown>): Record<string, unknown>;
   predictShape(options: Record<string, unknown>): Record<string, unknown>;
   sweepRise?(options: Record<string, unknown>): unknown;
 }

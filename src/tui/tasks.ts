@@ -3,11 +3,11 @@
  * shape, sweeping the rise time — so they can run in a worker thread (worker.ts) or inline.
  * Every figure comes from the core's functions.
  */
-import { decodeAudioSource } from '../cli/analyze-recording.js';
-import { openAudio, readChannelWindow, type AudioSource } from '../io/audio-source.js';
+import { decodeAudioSource, measureShapeOfFile } from '../cli/analyze-recording.js';
+import { openAudio, type AudioSource } from '../io/audio-source.js';
 import { planKeying } from '../core/timing/plan.js';
 import type { EdgeKind } from '../core/signal/edges.js';
-import { loadReceive, loadShape, loadTiming, NotAvailableError, type DecodeResult } from './core-modules.js';
+import { loadShape, loadTiming, NotAvailableError, type DecodeResult } from './core-modules.js';
 
 export type ShapeTask =
   | { kind: 'measure'; path: string }
@@ -58,8 +58,6 @@ function withPauses(source: AudioSource): AudioSource {
  * one is decoded on the channel with the strongest keyed tone.
  */
 export async function decodeRecording(path: string, onProgress: (fraction: number) => void): Promise<DecodedRecording> {
-  const receive = await loadReceive();
-  if (!receive) throw new NotAvailableError('the receiver');
   const audio = withPauses(await openAudio(path, { reuseChunks: true }));
   const { result: decode, channelNote } = await decodeAudioSource(audio, { keepEnvelope: true, onProgress: (f) => onProgress(f * 0.9) });
   const timingModule = await loadTiming();
@@ -85,10 +83,7 @@ export async function runShapeTask(task: ShapeTask, onProgress: (fraction: numbe
   switch (task.kind) {
     case 'measure': {
       // As `keyform shape` reads it: streamed, and only the default stretch of a long recording kept.
-      const audio = await openAudio(task.path, { streamAboveBytes: 0, reuseChunks: true });
-      const { samples, fromS, totalS } = await readChannelWindow(audio, 0, 0, shape.defaultShapeWindowS?.(audio.sampleRate) ?? Infinity);
-      const report = shape.measureShape(samples, audio.sampleRate, { onProgress });
-      const note = shape.stretchNote?.(fromS, samples.length / audio.sampleRate, totalS);
+      const { report, note } = await measureShapeOfFile(task.path, { onProgress });
       if (note) report.warnings.push(`${note.text}: \`keyform shape --from S --seconds S\` analyses another stretch`);
       return report;
     }

@@ -3,14 +3,13 @@ import { InputError } from '../../core/errors.js';
 import { EDGE_KINDS, type EdgeKind } from '../../core/signal/edges.js';
 import { parseMaskCsv, type SpectralMask } from '../../core/measure/mask.js';
 import {
-  CAUTION, DEFAULT_SHAPE_WINDOW_S, DEFAULT_SHAPE_WINDOW_SAMPLES, defaultShapeWindowS, FILTER_NOTE, MIN_STRONG_MARKS, measureShape, predictShape, stretchNote, sweepRise,
-  type ShapeReport, type SweepResult,
+  CAUTION, DEFAULT_SHAPE_WINDOW_S, DEFAULT_SHAPE_WINDOW_SAMPLES, FILTER_NOTE, MIN_STRONG_MARKS, predictShape, sweepRise, type ShapeReport, type SweepResult,
 } from '../../core/measure/shape.js';
 import { MIN_EDGE_SNR_DB, MIN_SPECTRUM_SNR_DB } from '../../core/measure/shape-snr.js';
 import { readInputFile, writeOutputFile } from '../../io/files.js';
 import { formatJson } from '../../io/json.js';
 import { shapeSvg } from '../../io/svg.js';
-import { openAudio, readChannelWindow } from '../../io/audio-source.js';
+import { measureShapeOfFile } from '../analyze-recording.js';
 import type { CommandContext } from '../io.js';
 import { numberIn, oneOf } from '../options.js';
 import { createProgress } from '../progress.js';
@@ -197,23 +196,17 @@ Caution: ${CAUTION}`,
           if (o.wpm === undefined) throw new InputError('--predict needs --wpm');
           report = predictShape({ wpm: o.wpm, farnsworthWpm: o.farnsworth ?? null, riseMs: o.rise, edge: o.edge, text: o.message, k: o.k, mask, chirpWindowMs: o.chirpWindow, onProgress: (x) => progress.update(x) });
         } else {
-          // Streamed whatever the size: only the stretch is kept, and the rest of a long file is not read.
-          const audio = await openAudio(file!, { streamAboveBytes: 0, reuseChunks: true });
-          const seconds = o.seconds ?? defaultShapeWindowS(audio.sampleRate);
-          // Reading takes the first tenth of the progress bar (most of the time when --from skips far in).
-          const { samples: ch, fromS, totalS } = await readChannelWindow(audio, o.channel - 1, o.from, seconds, (x) => progress.update(0.1 * x));
-          report = measureShape(ch, audio.sampleRate, {
-            toneHz: o.tone,
-            k: o.k,
-            mask,
-            unitMs: o.wpm !== undefined ? 1200 / o.wpm : undefined,
-            chirpWindowMs: o.chirpWindow,
-            onProgress: (x) => progress.update(0.1 + 0.9 * x),
+          const shaped = await measureShapeOfFile(file!, {
+            channel: o.channel - 1,
+            fromS: o.from,
+            seconds: o.seconds,
+            shape: { toneHz: o.tone, k: o.k, mask, unitMs: o.wpm !== undefined ? 1200 / o.wpm : undefined, chirpWindowMs: o.chirpWindow },
+            onProgress: (x) => progress.update(x),
           });
-          const note = stretchNote(fromS, ch.length / audio.sampleRate, totalS);
-          if (note) {
-            stretch = note.stretch;
-            report.warnings.push(`${note.text}: ${o.seconds === undefined ? `--seconds (default ${seconds} s here) and --from choose the stretch` : '--from and --seconds chose the stretch'}`);
+          report = shaped.report;
+          if (shaped.note) {
+            stretch = shaped.note.stretch;
+            report.warnings.push(`${shaped.note.text}: ${o.seconds === undefined ? `--seconds (default ${shaped.seconds} s here) and --from choose the stretch` : '--from and --seconds chose the stretch'}`);
           }
         }
         progress.done();
