@@ -378,7 +378,7 @@ Examples:
  * of 5–9 s; once 0.11 s slower), measured with the built CLI. With fewer workers than cores the
  * default stays: the compiler then runs on an idle core for free.
  */
-export function compileOnWorkerThreads(): void {
+function compileOnWorkerThreads(): void {
   setFlagsFromString('--no-concurrent-recompilation');
 }
 

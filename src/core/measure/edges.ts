@@ -3,7 +3,7 @@
  * rise time) measured on a wide keying envelope, one mark at a time.
  */
 import { checkRange } from '../errors.js';
-import { sortedCopy } from './timing-stats.js';
+import { quantileOfSorted, sortedCopy } from './timing-stats.js';
 
 /** One measured edge. Times on the recording's clock [ms]. */
 export interface EdgeMeasurement {
@@ -59,18 +59,8 @@ export interface EdgeAnalysis {
   warnings: string[];
 }
 
-function percentile(sorted: ArrayLike<number>, q: number): number {
-  if (sorted.length === 0) return NaN;
-  const x = q * (sorted.length - 1);
-  const i = Math.floor(x);
-  const f = x - i;
-  const a = sorted[i]!;
-  const b = sorted[Math.min(sorted.length - 1, i + 1)]!;
-  return a + (b - a) * f;
-}
-
 /**
- * Median of env[i0, i1), as percentile(sorted, 0.5) would give it (the mean of the two middle values
+ * Median of env[i0, i1), as quantileOfSorted(sorted, 0.5) would give it (the mean of the two middle values
  * for an even count), by selection on a copy: O(n) on average where sorting is O(n log n).
  * @example medianOf(Float32Array.of(5, 1, 4, 2), 0, 4) //=> 3
  */
@@ -79,7 +69,7 @@ export function medianOf(env: Float32Array, i0: number, i1: number): number {
 }
 
 /**
- * percentile(sorted a, q) without sorting: selection, which reorders `a` (pass a copy you own).
+ * quantileOfSorted(sorted a, q) without sorting: selection, which reorders `a` (pass a copy you own).
  * @param q - 0…1.
  */
 export function selectPercentile(a: Float32Array, q: number): number {
@@ -178,7 +168,7 @@ function stdOf(env: Float32Array, i0: number, i1: number): number {
 export function spreadOf(values: ArrayLike<number>): { median: number | null; p10: number | null; p90: number | null } {
   if (values.length === 0) return { median: null, p10: null, p90: null };
   const s = sortedCopy(values);
-  return { median: percentile(s, 0.5), p10: percentile(s, 0.1), p90: percentile(s, 0.9) };
+  return { median: quantileOfSorted(s, 0.5), p10: quantileOfSorted(s, 0.1), p90: quantileOfSorted(s, 0.9) };
 }
 
 /**
@@ -359,7 +349,7 @@ export function measureEdges(env: Float32Array, sampleRate: number, options: Edg
 
   const levels = { offLevel, msPerSample, sampleRate };
   for (let m = 0; m < kept.length; m++) {
-    const [a, b] = kept[m]!;
+    const a = kept[m]![0];
     if (!(a >= keepFrom && a < keepTo)) continue;
     result.marks.push(measureMark(env, kept, m, levels, counts));
   }

@@ -73,7 +73,6 @@ export function addSnrSums(
   at: { startMs: number; keepFromMs: number; keepToMs: number; recordMs: number },
 ): SnrSums {
   const perMs = sampleRate / 1000;
-  const N = bb.re.length;
   const lo = Math.max(at.keepFromMs, 10);
   const hi = Math.min(at.keepToMs, at.recordMs - 10);
   const span = { lo, hi, startMs: at.startMs, perMs };

@@ -26,8 +26,12 @@ export function sortedCopy(values: ArrayLike<number>): Float64Array {
  * @example quantile([1, 2, 3, 4], 0.5) //=> 2.5
  */
 export function quantile(values: readonly number[], q: number): number {
-  if (values.length === 0) return NaN;
-  const s = sortedCopy(values);
+  return quantileOfSorted(sortedCopy(values), q);
+}
+
+/** {@link quantile} of values already sorted ascending. @example quantileOfSorted([1, 2, 3, 4], 0.5) //=> 2.5 */
+export function quantileOfSorted(s: ArrayLike<number>, q: number): number {
+  if (s.length === 0) return NaN;
   const pos = (s.length - 1) * q;
   const lo = Math.floor(pos);
   const hi = Math.ceil(pos);

@@ -89,7 +89,6 @@ export class StreamDecoder {
   private preLen = 0;
   private originSample = 0;
   private samplesIn = 0;
-  private toneProminenceDb = 0;
   private noSignalReason: string | null = null;
 
   private mixer: Mixer | null = null;
@@ -208,7 +207,6 @@ export class StreamDecoder {
         return;
       }
       toneHz = found.toneHz;
-      this.toneProminenceDb = found.prominenceDb;
     }
     this.toneStartHz = toneHz;
     const spf = Math.max(1, Math.round((this.sampleRate * FRAME_MS) / 1000));
