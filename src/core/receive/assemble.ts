@@ -26,9 +26,11 @@ export class Assembler {
   readonly characters: DecodedCharacter[] = [];
   private text = '';
   private pattern = '';
-  private startMs = 0;
-  private endMs = 0;
-  private confidence = 1;
+  // Set at the first mark of each character; NaN until then (numbers with fractions from the
+  // start, so the engine never has to widen these fields from small integers mid-recording).
+  private startMs = NaN;
+  private endMs = NaN;
+  private confidence = NaN;
   private spacePending = false;
 
   constructor(

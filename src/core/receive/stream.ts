@@ -120,6 +120,9 @@ export class StreamDecoder {
   /** frameCount modulo the ring's length: where the next frame goes. */
   private frameSlot = 0;
   private lastMarkEndMs = 0;
+  /** Where refineEdges put the edges of the last mark [ms] (NaN at first: a field for fractional numbers). */
+  private refinedStartMs = NaN;
+  private refinedEndMs = NaN;
   private afterElementGap = false;
   private prevOn = false;
   private prevRe = 0;
@@ -498,11 +501,19 @@ export class StreamDecoder {
       if (seg.endSlot > limit) break;
       if (seg.endSlot <= this.committedSlot) continue;
       if (seg.startSlot >= realEnd) break;
-      let s: Segment = seg.startSlot < this.committedSlot ? { ...seg, startSlot: this.committedSlot } : seg;
-      if (s.endSlot > realEnd) s = { ...s, endSlot: realEnd }; // cut by the end of the recording
+      // Cut by what is already committed and by the end of the recording (a literal of the same
+      // shape as the decoder's segments, so that the code below sees objects of one kind).
+      const s: Segment =
+        seg.startSlot < this.committedSlot || seg.endSlot > realEnd
+          ? { kind: seg.kind, startSlot: Math.max(seg.startSlot, this.committedSlot), endSlot: seg.endSlot > realEnd ? realEnd : seg.endSlot, node: seg.node }
+          : seg;
       let startMs = this.slotToMs(s.startSlot);
       let endMs = this.slotToMs(s.endSlot);
-      if (s.kind === 'mark') [startMs, endMs] = this.refineEdges(s.startSlot, s.endSlot, startMs, endMs);
+      if (s.kind === 'mark') {
+        this.refineEdges(s.startSlot, s.endSlot, startMs, endMs);
+        startMs = this.refinedStartMs;
+        endMs = this.refinedEndMs;
+      }
       this.account(s, s.kind === 'mark' ? (endMs - startMs) / this.slotMs : s.endSlot - s.startSlot);
       // Element gaps for the speed figure: between the refined edges of the marks around them.
       if (s.kind === 'mark') {
@@ -534,14 +545,15 @@ export class StreamDecoder {
    * the noise or no single clean crossing is found.
    * @param aSlot - First slot of the decided mark. @param bSlot - Slot after its end.
    * @param startMs - Decided start [ms]. @param endMs - Decided end [ms].
-   * @returns Refined [start, end] [ms].
+   * The refined edges go to refinedStartMs and refinedEndMs [ms] (fields rather than a new array:
+   * no allocation per mark, and numbers of one kind in one place for the engine).
    */
-  private refineEdges(aSlot: number, bSlot: number, startMs: number, endMs: number): [number, number] {
+  private refineEdges(aSlot: number, bSlot: number, startMs: number, endMs: number): void {
     const k = this.framesPerSlot;
     const R = this.frameAmp.length;
     const f0 = aSlot * k;
     const f1 = bSlot * k;
-    if (this.frameCount - (f0 - 2 * k) > R || f0 - 2 * k < 0 || f1 + k > this.frameCount) return [startMs, endMs];
+    if (this.frameCount - (f0 - 2 * k) > R || f0 - 2 * k < 0 || f1 + k > this.frameCount) return this.keepEdges(startMs, endMs);
     // Key-up power: the frames one to two slots outside the decided edges (inside the gaps around
     // the mark when the decision is within a slot of the truth), or the slicer's figure.
     let gapSum = 0;
@@ -552,10 +564,10 @@ export class StreamDecoder {
     // First pass: the mark's level from the frames a slot inside the decided edges.
     const inner = f1 - f0 > 2 * k ? k : 1;
     const p1 = this.meanFramePow(f0 + inner, f1 - inner - 1);
-    if (p1 === null) return [startMs, endMs];
+    if (p1 === null) return this.keepEdges(startMs, endMs);
     const markAmp = Math.sqrt(Math.max(0, p1 - noisePow));
     // Mark amplitude at least 3 times the noise's RMS amplitude, or the crossing is left alone.
-    if (markAmp < 3 * Math.sqrt(noisePow)) return [startMs, endMs];
+    if (markAmp < 3 * Math.sqrt(noisePow)) return this.keepEdges(startMs, endMs);
     let rise = this.frameCrossing(0.5 * markAmp, f0 - k, f0 + k, true, startMs, noisePow);
     let fall = this.frameCrossing(0.5 * markAmp, f1 - k, f1 + k, false, endMs, noisePow);
     // Second pass: the decided edges may be a slot off, so the first level can include edge frames;
@@ -573,7 +585,13 @@ export class StreamDecoder {
     }
     const s = rise ?? startMs;
     const e = fall ?? endMs;
-    return e > s ? [s, e] : [startMs, endMs];
+    if (e > s) this.keepEdges(s, e);
+    else this.keepEdges(startMs, endMs);
+  }
+
+  private keepEdges(startMs: number, endMs: number): void {
+    this.refinedStartMs = startMs;
+    this.refinedEndMs = endMs;
   }
 
   // Helpers of refineEdges, as methods rather than callbacks made at each call: the engine keeps

@@ -24,6 +24,8 @@ export interface Segment {
 }
 
 const NEG = -1e300;
+/** Slot within each 65,536 at which the scores are shifted (see the end of step). */
+const RESCALE_PHASE = 16;
 
 /** Spread of each class on a log scale (hand-sent dash/dot ratio 2.5…4 and 20 % jitter fit inside). */
 const SPREAD = { dit: 0.3, dah: 0.3, elementGap: 0.35, letterGap: 0.35, wordGap: 0.35 } as const;
@@ -139,7 +141,10 @@ export class SequenceDecoder {
   /** Per slot: the best element-gap state a long dot / long dash may follow, and its score. */
   private readonly longSrcScore: [Float64Array, Float64Array];
   private readonly longSrcState: [Int16Array, Int16Array];
-  /** Per node: bit 0 if its dot child is the long dot node, bit 1 if its dash child is the long dash node. */
+  /**
+   * Per state: for the element gap after node p (state n + p), bit 0 if p's dot child is the long
+   * dot node, bit 1 if its dash child is the long dash node; 0 for every other state.
+   */
   private readonly longMask: Uint8Array;
   private blockSlots = 4;
   private minWeakSlots = 3;
@@ -184,9 +189,9 @@ export class SequenceDecoder {
     this.written = new Int16Array(this.nStates);
     this.longSrcScore = [new Float64Array(H).fill(NEG), new Float64Array(H).fill(NEG)];
     this.longSrcState = [new Int16Array(H).fill(-1), new Int16Array(H).fill(-1)];
-    this.longMask = new Uint8Array(this.n);
-    for (const p of trie.longDotParents) this.longMask[p] |= 1;
-    for (const p of trie.longDashParents) this.longMask[p] |= 2;
+    this.longMask = new Uint8Array(this.nStates);
+    for (const p of trie.longDotParents) this.longMask[this.n + p] |= 1;
+    for (const p of trie.longDashParents) this.longMask[this.n + p] |= 2;
     this.rowBase = new Int32Array(H);
     this.lastAlive = new Int32Array(this.nStates).fill(-1_000_000);
     this.lastAlive[this.stS] = 0;
@@ -250,7 +255,14 @@ export class SequenceDecoder {
     const bpPrev = this.bpPrev;
     // Marks: from the gap before them (element gap of the parent, or a letter/word gap at the root).
     const lastAlive = this.lastAlive;
-    const rootAlive = Math.max(lastAlive[this.stR]!, lastAlive[this.stS]!);
+    // Fields read once here, not inside branches that the first stretch of a recording (often only
+    // noise) never takes: the engine compiles this method early, and a field first read in such a
+    // branch later makes it throw the compiled code away and compile it again.
+    const stR = this.stR;
+    const stS = this.stS;
+    const { dotChild, dashChild } = this.trie;
+    const charPrior = this.charPrior;
+    const rootAlive = Math.max(lastAlive[stR]!, lastAlive[stS]!);
     for (let node = 1; node < n; node++) {
       const table = symbol[node] === 1 ? dah : dit;
       const p = parent[node]!;
@@ -265,9 +277,9 @@ export class SequenceDecoder {
         let src: number;
         let srcState: number;
         if (p === 0) {
-          const r = score[ab + this.stR]!;
-          const s = score[ab + this.stS]!;
-          if (r >= s) { src = r; srcState = this.stR; } else { src = s; srcState = this.stS; }
+          const r = score[ab + stR]!;
+          const s = score[ab + stS]!;
+          if (r >= s) { src = r; srcState = stR; } else { src = s; srcState = stS; }
         } else {
           src = score[ab + n + p]!;
           srcState = n + p;
@@ -311,7 +323,7 @@ export class SequenceDecoder {
       const hi = Math.min(egap.max, t);
       for (let node = 1; node < n; node++) {
         if (lastAlive[node]! < t - egap.max) continue;
-        if (this.trie.dotChild[node]! < 0 && this.trie.dashChild[node]! < 0) continue;
+        if (dotChild[node]! < 0 && dashChild[node]! < 0) continue;
         let best = NEG;
         let bestD = 0;
         for (let d = egap.min; d <= hi; d++) {
@@ -329,16 +341,16 @@ export class SequenceDecoder {
       }
     }
     // Letter and word gaps: close the best character that ended where the gap starts.
-    if (this.closeGap(lgap, GAP_PRIOR.letterGap, this.stR, t, base)) written[nWritten++] = this.stR;
-    const wordGapWritten = this.closeGap(wgap, GAP_PRIOR.wordGap, this.stS, t, base);
+    if (this.closeGap(lgap, GAP_PRIOR.letterGap, stR, t, base)) written[nWritten++] = stR;
+    const wordGapWritten = this.closeGap(wgap, GAP_PRIOR.wordGap, stS, t, base);
     // Idle: a word gap may go on for any length.
-    const idle = score[pi * S + this.stS]!;
-    if (idle > score[base + this.stS]!) {
-      score[base + this.stS] = idle;
-      bpDur[base + this.stS] = 1;
-      bpPrev[base + this.stS] = this.stS;
+    const idle = score[pi * S + stS]!;
+    if (idle > score[base + stS]!) {
+      score[base + stS] = idle;
+      bpDur[base + stS] = 1;
+      bpPrev[base + stS] = stS;
     }
-    if (wordGapWritten || score[base + this.stS]! > NEG) written[nWritten++] = this.stS;
+    if (wordGapWritten || score[base + stS]! > NEG) written[nWritten++] = stS;
     // Beam: drop what is far below the best path; remember what is still alive. Only the states
     // written at this slot can hold a score (the row was cleared above).
     let top = NEG;
@@ -357,11 +369,12 @@ export class SequenceDecoder {
       if (v <= NEG) continue;
       if (v < floor) { score[base + s] = NEG; continue; }
       lastAlive[s] = t;
-      if (s >= n && s < 2 * n) {
-        const m = longMask[s - n]!;
-        if ((m & 1) !== 0 && v > dotSrc) { dotSrc = v; dotState = s; }
-        if ((m & 2) !== 0 && v > dashSrc) { dashSrc = v; dashState = s; }
-      }
+      // Branch-free over the kinds of state (the mask is 0 outside element gaps), with the score
+      // compared first: every comparison here is then made from the first slots on, and none is
+      // new to the engine when the first element gaps appear.
+      const m = longMask[s]!;
+      if (v > dotSrc && (m & 1) !== 0) { dotSrc = v; dotState = s; }
+      if (v > dashSrc && (m & 2) !== 0) { dashSrc = v; dashState = s; }
     }
     this.longSrcScore[0][ti] = dotSrc;
     this.longSrcState[0][ti] = dotState;
@@ -374,14 +387,16 @@ export class SequenceDecoder {
     for (let w = 0; w < nWritten; w++) {
       const node = written[w]!;
       if (node >= n) break;
-      const v = score[base + node]! + this.charPrior[node]!;
+      const v = score[base + node]! + charPrior[node]!;
       if (v > bc) { bc = v; bcNode = node; }
     }
     this.bestChar[ti] = bc;
     this.bestCharNode[ti] = bcNode;
     // Keep numbers small: shift every live score by the best one now and then (float64 keeps
     // ample precision in between).
-    if ((t & 0xffff) === 0) this.rescale(base);
+    // (At slot 16, 65552, …: the first one early, so that the engine has seen the call before it
+    // compiles this method, rather than meeting it after a quarter of an hour and compiling again.)
+    if ((t & 0xffff) === RESCALE_PHASE) this.rescale(base);
   }
 
   /**
@@ -482,8 +497,10 @@ export class SequenceDecoder {
       w[d] = fw;
       llr[d] = d >= minWeak ? fw : full;
     }
-    // The whole block ending now, for the marks that will start with it.
-    if (t >= block) {
+    // The whole block ending now, for the marks that will start with it. (Not kept over the first
+    // two blocks: the recomputation below then runs at the start too, so it is no path new to the
+    // engine when a change of speed later makes the kept blocks stale.)
+    if (t >= 2 * block) {
       this.blockAt[ti] = w[block]!;
       this.blockSizeAt[ti] = block;
     }
