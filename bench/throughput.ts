@@ -4,7 +4,8 @@
  *
  *   npm run bench:throughput                      one hour at 48 kHz and at 8 kHz (the issue's case)
  *   npx tsx bench/throughput.ts --minutes 10      shorter, for a quick look
- *   options: --minutes M  --repeats R  --batch 6x10,6x60,12x60 (folders of N files × M minutes; 6x10@48 for 48 kHz)  --batch-repeats R  --dir DIR  --keep
+ *   options: --minutes M  --repeats R  --batch 6x10,6x60,12x60,6x60@48 (folders of N files × M minutes, 8 kHz
+ *            unless @48 says 48 kHz)  --batch-repeats R (default 5)  --dir DIR  --keep
  *
  * Test audio (deterministic, seeded): traffic of 20–25 WPM between invented stations, 5 ms raised-cosine
  * edges, 700 Hz tone, white Gaussian noise at +5 dB SNR (key-down carrier power over noise power in
@@ -13,9 +14,10 @@
  * Each measurement runs in a child process so its peak resident memory (process.resourceUsage().maxRSS)
  * is its own: "read" = read the file through the streaming path and convert to float (the floor),
  * "decode" = the same plus the streaming receiver. Batch speed-up runs the built CLI (dist/) with
- * --jobs 1 and --jobs 2 over the same files, for a folder of short files and two of long ones: each
- * worker thread compiles the code for itself (the engine's optimising compiler, on background
- * threads) before it runs at full speed, a cost per worker that a short batch does not hide.
+ * --jobs 1 and --jobs 2 over the same files, for a folder of short files and three of long ones (one
+ * of them at 48 kHz, as a sound card records): each worker thread compiles the code for itself (the
+ * engine's optimising compiler) before it runs at full speed, a cost per worker that a short batch
+ * does not hide. Rounds alternate which of the two runs first; the summary gives the median round.
  */
 import { spawnSync } from 'node:child_process';
 import { closeSync, existsSync, mkdirSync, openSync, readFileSync, renameSync, rmSync, statSync, writeFileSync, writeSync } from 'node:fs';
@@ -27,6 +29,7 @@ import { synthesizeTone } from '../src/core/signal/synth.js';
 import { planKeying } from '../src/core/timing/plan.js';
 import { StreamDecoder } from '../src/core/receive/index.js';
 import { openAudio } from '../src/io/audio-source.js';
+import { median } from '../src/core/measure/timing-stats.js';
 
 const SNR_DB = 5;
 const LEVEL_DB = -20; // low enough that +5 dB SNR noise at 48 kHz stays far from clipping in 16 bits
@@ -177,7 +180,7 @@ async function controlSpeedup(tasks = 4): Promise<{ oneS: number; twoS: number }
 
 // ---------------------------------------------------------------- main
 const minutes = arg('--minutes', 60);
-const batchShapes = (process.argv.includes('--batch') ? process.argv[process.argv.indexOf('--batch') + 1]! : '6x10,6x60,12x60').split(',').map((spec) => {
+const batchShapes = (process.argv.includes('--batch') ? process.argv[process.argv.indexOf('--batch') + 1]! : '6x10,6x60,12x60,6x60@48').split(',').map((spec) => {
   const m = /^(\d+)x(\d+(?:\.\d+)?)(?:@(8|16|44\.1|48))?$/.exec(spec.trim());
   if (!m) throw new Error(`--batch: expected N×M[@kHz] like 6x10 or 6x10@48 (got ${spec})`);
   return { files: Number(m[1]), minutes: Number(m[2]), sampleRate: Math.round(Number(m[3] ?? 8) * 1000) };
@@ -254,14 +257,23 @@ if (!existsSync(bin) || !existsSync(fileURLToPath(new URL('../dist/cli/batch-wor
       const p = join(batchDir, `q-traffic-${String(i + 1).padStart(2, '0')}.wav`);
       if (!existsSync(p)) generate(p, batchRate, batchMinutes * 60, SEED + 1 + i);
     }
-    // Each round: the control (what the machine can give right now), then 1 worker, then 2 workers.
-    // On a shared machine the rounds differ; the control beside each shows why.
-    const repeats = arg('--batch-repeats', 3);
+    // Each round: the control (what the machine can give right now), then 1 and 2 workers, in turn
+    // 1 then 2 and 2 then 1, so that a machine slowing down or speeding up over the minutes of the
+    // run favours neither. On a shared machine the rounds differ; the control beside each shows why.
+    const repeats = arg('--batch-repeats', 5);
     const rounds: { one: ReturnType<typeof timeCli>; two: ReturnType<typeof timeCli>; control: number }[] = [];
     for (let i = 0; i < repeats; i++) {
       const c = await controlSpeedup(2);
-      const one = timeCli(['batch', batchDir, '--jobs', '1', '--json']);
-      const two = timeCli(['batch', batchDir, '--jobs', '2', '--json']);
+      const runJobs = (jobs: number): ReturnType<typeof timeCli> => timeCli(['batch', batchDir, '--jobs', String(jobs), '--json']);
+      let one: ReturnType<typeof timeCli>;
+      let two: ReturnType<typeof timeCli>;
+      if (i % 2 === 0) {
+        one = runJobs(1);
+        two = runJobs(2);
+      } else {
+        two = runJobs(2);
+        one = runJobs(1);
+      }
       rounds.push({ one, two, control: c.oneS / c.twoS });
     }
     say(`Batch: ${batchFiles} files × ${batchMinutes} min at ${batchRate / 1000} kHz (decode + timing + shape per file), built CLI, ${repeats} rounds`);
@@ -282,7 +294,11 @@ if (!existsSync(bin) || !existsSync(fileURLToPath(new URL('../dist/cli/batch-wor
     );
     const one = rounds.reduce((a, r) => (r.one.wallS < a.wallS ? r.one : a), rounds[0]!.one);
     const two = rounds.reduce((a, r) => (r.two.wallS < a.wallS ? r.two : a), rounds[0]!.two);
-    say(`fastest 1-worker run ${one.wallS.toFixed(2)} s, fastest 2-worker run ${two.wallS.toFixed(2)} s: ${(one.wallS / two.wallS).toFixed(2)}×`);
+    const speedups = rounds.map((r) => r.one.wallS / r.two.wallS);
+    say(
+      `fastest 1-worker run ${one.wallS.toFixed(2)} s, fastest 2-worker run ${two.wallS.toFixed(2)} s: ${(one.wallS / two.wallS).toFixed(2)}×; ` +
+        `median of the rounds ${median(speedups).toFixed(2)}×, ${speedups.filter((x) => x >= 1.7).length} of ${rounds.length} rounds at 1.7× or more`,
+    );
     if (one.status !== 0 || two.status !== 0) say(`(batch exit codes ${one.status} and ${two.status}: ${(one.stderr + two.stderr).trim().split('\n').slice(-2).join(' / ')})`);
     say('');
   }
