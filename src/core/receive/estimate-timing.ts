@@ -137,25 +137,10 @@ export function estimateTimingCandidates(re: Float64Array, im: Float64Array, n: 
     const w = Math.max(1, Math.round(u / frameMs));
     const m = n - w + 1;
     if (m < 8 * w) break;
-    for (let k = 0; k < m; k++) {
-      const dr = pr[k + w]! - pr[k]!;
-      const di = pi[k + w]! - pi[k]!;
-      env[k] = Math.sqrt(dr * dr + di * di);
-    }
+    windowMagnitudes(pr, pi, w, m, env);
     const { runs, low, high } = slice(env, m, Math.max(1, 0.4 * w));
     if (!(high > 1.5 * low)) continue;
-    let score = 0;
-    let marks = 0;
-    let counted = 0;
-    for (let i = 1; i < runs.length - 1; i++) {
-      const run = runs[i]!;
-      const r = (run.length * frameMs) / u;
-      if (run.on) marks++;
-      else if (r >= 5) continue;
-      const f = Math.max(fit(r, 1), fit(r, 3));
-      score += f - 0.5 * (1 - f);
-      counted++;
-    }
+    const { score, marks, counted } = scoreRuns(runs, frameMs, u);
     if (marks < 2) continue;
     scored.push({ score, u, w, runs, counted });
   }
@@ -168,6 +153,36 @@ export function estimateTimingCandidates(re: Float64Array, im: Float64Array, n: 
     if (best && !chosen.includes(best)) chosen.push(best);
   }
   return chosen.slice(0, count).map((c) => ({ ...refine(re, im, n, frameMs, c.u, c.w, c.runs), fit: c.score / Math.max(1, c.counted) }));
+}
+
+// The two loops of each candidate, as leaf functions: called for every candidate, they are compiled
+// once, while a loop inside estimateTimingCandidates itself (which runs once per recording) would be
+// compiled "on stack" again for every recording a batch worker reads.
+
+/** |sum of w frames| for each window start k = 0…m−1, from the prefix sums pr, pi, into env. */
+function windowMagnitudes(pr: Float64Array, pi: Float64Array, w: number, m: number, env: Float64Array): void {
+  for (let k = 0; k < m; k++) {
+    const dr = pr[k + w]! - pr[k]!;
+    const di = pi[k + w]! - pi[k]!;
+    env[k] = Math.sqrt(dr * dr + di * di);
+  }
+}
+
+/** How well the inner runs of a slicing fit whole dots and dashes of unit u [ms]. */
+function scoreRuns(runs: Run[], frameMs: number, u: number): { score: number; marks: number; counted: number } {
+  let score = 0;
+  let marks = 0;
+  let counted = 0;
+  for (let i = 1; i < runs.length - 1; i++) {
+    const run = runs[i]!;
+    const r = (run.length * frameMs) / u;
+    if (run.on) marks++;
+    else if (r >= 5) continue;
+    const f = Math.max(fit(r, 1), fit(r, 3));
+    score += f - 0.5 * (1 - f);
+    counted++;
+  }
+  return { score, marks, counted };
 }
 
 /** Unit, gaps and levels from the runs of one candidate slicing. */

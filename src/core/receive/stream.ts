@@ -87,7 +87,10 @@ export class StreamDecoder {
   private phase: 'search' | 'run' | 'done' = 'search';
   private preroll: Float32Array;
   private preLen = 0;
-  private originSample = 0;
+  // -0 rather than 0: the same sums, but a field the engine holds as a fraction from the start, so
+  // the millisecond arithmetic below (sample × 1000 passes 2^31 after 45 s at 48 kHz) is compiled
+  // for fractions once, instead of for small integers first and again when they overflow.
+  private originSample = -0;
   private samplesIn = 0;
   private noSignalReason: string | null = null;
 
@@ -497,16 +500,17 @@ export class StreamDecoder {
     const limit = final ? decoder.t : decoder.t - this.lagSlots;
     if (limit <= this.committedSlot) return;
     const segments = decoder.traceback(this.committedSlot, limit);
-    for (const seg of segments) {
+    // An indexed loop, not for…of: leaving a for…of by `break` calls the iterator's return(), which
+    // the first recording reaches only after the engine has compiled this method.
+    for (let i = 0; i < segments.length; i++) {
+      const seg = segments[i]!;
       if (seg.endSlot > limit) break;
       if (seg.endSlot <= this.committedSlot) continue;
       if (seg.startSlot >= realEnd) break;
-      // Cut by what is already committed and by the end of the recording (a literal of the same
-      // shape as the decoder's segments, so that the code below sees objects of one kind).
-      const s: Segment =
-        seg.startSlot < this.committedSlot || seg.endSlot > realEnd
-          ? { kind: seg.kind, startSlot: Math.max(seg.startSlot, this.committedSlot), endSlot: seg.endSlot > realEnd ? realEnd : seg.endSlot, node: seg.node }
-          : seg;
+      // Cut by what is already committed and by the end of the recording. Always a new object of
+      // the decoder's segment shape (one per committed segment): the code below sees objects of one
+      // kind, and this line runs from the first segment on, not first when a segment is cut.
+      const s: Segment = { kind: seg.kind, startSlot: Math.max(seg.startSlot, this.committedSlot), endSlot: seg.endSlot > realEnd ? realEnd : seg.endSlot, node: seg.node };
       let startMs = this.slotToMs(s.startSlot);
       let endMs = this.slotToMs(s.endSlot);
       if (s.kind === 'mark') {
@@ -549,11 +553,15 @@ export class StreamDecoder {
    * no allocation per mark, and numbers of one kind in one place for the engine).
    */
   private refineEdges(aSlot: number, bSlot: number, startMs: number, endMs: number): void {
+    // The decided edges, unless a clean crossing is found below (stored first: the early returns
+    // are rare, and a store first reached in one of them would make the engine compile this again).
+    this.refinedStartMs = startMs;
+    this.refinedEndMs = endMs;
     const k = this.framesPerSlot;
     const R = this.frameAmp.length;
     const f0 = aSlot * k;
     const f1 = bSlot * k;
-    if (this.frameCount - (f0 - 2 * k) > R || f0 - 2 * k < 0 || f1 + k > this.frameCount) return this.keepEdges(startMs, endMs);
+    if (this.frameCount - (f0 - 2 * k) > R || f0 - 2 * k < 0 || f1 + k > this.frameCount) return;
     // Key-up power: the frames one to two slots outside the decided edges (inside the gaps around
     // the mark when the decision is within a slot of the truth), or the slicer's figure.
     let gapSum = 0;
@@ -564,10 +572,10 @@ export class StreamDecoder {
     // First pass: the mark's level from the frames a slot inside the decided edges.
     const inner = f1 - f0 > 2 * k ? k : 1;
     const p1 = this.meanFramePow(f0 + inner, f1 - inner - 1);
-    if (p1 === null) return this.keepEdges(startMs, endMs);
+    if (p1 === null) return;
     const markAmp = Math.sqrt(Math.max(0, p1 - noisePow));
     // Mark amplitude at least 3 times the noise's RMS amplitude, or the crossing is left alone.
-    if (markAmp < 3 * Math.sqrt(noisePow)) return this.keepEdges(startMs, endMs);
+    if (markAmp < 3 * Math.sqrt(noisePow)) return;
     let rise = this.frameCrossing(0.5 * markAmp, f0 - k, f0 + k, true, startMs, noisePow);
     let fall = this.frameCrossing(0.5 * markAmp, f1 - k, f1 + k, false, endMs, noisePow);
     // Second pass: the decided edges may be a slot off, so the first level can include edge frames;
@@ -585,13 +593,10 @@ export class StreamDecoder {
     }
     const s = rise ?? startMs;
     const e = fall ?? endMs;
-    if (e > s) this.keepEdges(s, e);
-    else this.keepEdges(startMs, endMs);
-  }
-
-  private keepEdges(startMs: number, endMs: number): void {
-    this.refinedStartMs = startMs;
-    this.refinedEndMs = endMs;
+    if (e > s) {
+      this.refinedStartMs = s;
+      this.refinedEndMs = e;
+    }
   }
 
   // Helpers of refineEdges, as methods rather than callbacks made at each call: the engine keeps
