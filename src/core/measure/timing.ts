@@ -173,7 +173,7 @@ function classify(
   const split = splitTwoClasses(lens);
   const twoKinds = split !== null && split.highMean / split.lowMean >= 1.7;
   const isDah = new Array<boolean>(lens.length);
-  if (twoKinds) for (let i = 0; i < lens.length; i++) isDah[i] = lens[i]! > split.threshold;
+  if (twoKinds) markLongerThan(lens, split.threshold, isDah);
   else {
     const allDahs = hint !== undefined && median(lens) > 2 * hint;
     isDah.fill(allDahs);
@@ -189,11 +189,7 @@ function classify(
     const periods = dotPeriods(lens, gaps, isDah);
     unit = median(dits);
     if (periods.length > 0) {
-      let shortest = Infinity;
-      for (const p of periods) shortest = Math.min(shortest, p);
-      const low: number[] = [];
-      for (const p of periods) if (p < 1.45 * shortest) low.push(p);
-      const u0 = median(low) / 2;
+      const u0 = median(nearShortest(periods, 1.45)) / 2;
       const ditShare = median(dits) / u0;
       if (ditShare >= 0.4 && ditShare <= 1.6) unit = u0;
     }
@@ -219,6 +215,24 @@ function classify(
     unit = next;
   }
   return { isDah, gapClass, unitMs: unit };
+}
+
+// The loops of classify, as leaf functions: classify runs once per recording, and with its loops
+// inside it the engine would compile it (and all it calls) on stack for a batch worker's first
+// recordings and then again as a whole; the leaves are small and compiled once.
+
+/** out[i] = lens[i] > threshold. */
+function markLongerThan(lens: readonly number[], threshold: number, out: boolean[]): void {
+  for (let i = 0; i < lens.length; i++) out[i] = lens[i]! > threshold;
+}
+
+/** The values below `factor` times the smallest one, in order. */
+function nearShortest(values: readonly number[], factor: number): number[] {
+  let shortest = Infinity;
+  for (const v of values) shortest = Math.min(shortest, v);
+  const near: number[] = [];
+  for (const v of values) if (v < factor * shortest) near.push(v);
+  return near;
 }
 
 function histogramOf(lensUnits: readonly number[], binUnits: number, maxUnits: number): { counts: number[]; over: number } {
