@@ -4,7 +4,7 @@
  * same statistics of the sorted values (linear interpolation between order statistics), ties and all.
  */
 import { describe, expect, it } from 'vitest';
-import { medianOf, selectPercentile } from '../../src/core/measure/edges.js';
+import { medianOf, selectQuantile } from '../../src/core/measure/edges.js';
 import { seededRandom } from '../../src/core/signal/noise.js';
 
 function sortedMedian(values: Float32Array): number {
@@ -39,12 +39,12 @@ describe('medianOf', () => {
     expect(medianOf(Float32Array.of(7), 0, 1)).toBe(7);
   });
 
-  it('selectPercentile gives the 5th and 95th percentiles of the sorted values (the envelope levels)', () => {
+  it('selectQuantile gives the 5th and 95th percentiles of the sorted values (the envelope levels)', () => {
     const random = seededRandom(23);
     for (let t = 0; t < 1000; t++) {
       const n = 1 + Math.floor(random() * 300);
       const a = Float32Array.from({ length: n }, () => (random() < 0.3 ? 0.01 * Math.floor(random() * 5) : random()));
-      for (const q of [0.05, 0.5, 0.95]) expect(selectPercentile(a.slice(), q)).toBeCloseTo(sortedPercentile(a, q), 6);
+      for (const q of [0.05, 0.5, 0.95]) expect(selectQuantile(a.slice(), q)).toBeCloseTo(sortedPercentile(a, q), 6);
     }
   });
 });

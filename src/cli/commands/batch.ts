@@ -137,6 +137,11 @@ export function reportFormat(path: string): ReportFormat {
   throw new InputError(`--out ${path}: the report must end in .csv or .jsonl`);
 }
 
+/** Where a report is written while the batch runs (see ReportWriter). */
+function partialPathOf(reportPath: string): string {
+  return join(dirname(reportPath), `${basename(reportPath)}.partial`);
+}
+
 /** The rows of an earlier report that `--resume` keeps, as the report's own lines. */
 export interface EarlierReport {
   /** Where they were read from (the report, or its .partial when the run was killed before it ended). */
@@ -212,7 +217,7 @@ export class ReportWriter {
     this.format = reportFormat(path);
     this.force = force || kept !== null;
     if (!this.force && existsSync(path)) throw new InputError(`${path}: already exists (use --force to replace it, or --resume to go on with it)`);
-    this.partialPath = join(dirname(path), `${basename(path)}.partial`);
+    this.partialPath = partialPathOf(path);
     try {
       this.fd = openSync(this.partialPath, 'w');
     } catch (err) {
@@ -390,7 +395,7 @@ async function runBatch(inputs: string[], o: BatchCliOptions, ctx: CommandContex
     if (!o.out) throw new InputError('--resume needs --out REPORT: the report to go on with');
     if (o.force) throw new InputError('give --resume or --force, not both');
     reportFormat(o.out);
-    const partial = join(dirname(o.out), `${basename(o.out)}.partial`);
+    const partial = partialPathOf(o.out);
     // The report, or what a run killed before it could finish left in its .partial.
     const from = existsSync(o.out) ? o.out : existsSync(partial) ? partial : null;
     if (from) earlier = readEarlierReport(from, o.out);

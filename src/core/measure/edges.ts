@@ -65,14 +65,14 @@ export interface EdgeAnalysis {
  * @example medianOf(Float32Array.of(5, 1, 4, 2), 0, 4) //=> 3
  */
 export function medianOf(env: Float32Array, i0: number, i1: number): number {
-  return selectPercentile(env.slice(Math.max(0, i0), Math.max(i0 + 1, Math.min(env.length, i1))), 0.5);
+  return selectQuantile(env.slice(Math.max(0, i0), Math.max(i0 + 1, Math.min(env.length, i1))), 0.5);
 }
 
 /**
  * quantileOfSorted(sorted a, q) without sorting: selection, which reorders `a` (pass a copy you own).
  * @param q - 0…1.
  */
-export function selectPercentile(a: Float32Array, q: number): number {
+export function selectQuantile(a: Float32Array, q: number): number {
   const n = a.length;
   if (n === 0) return NaN;
   const x = q * (n - 1);
@@ -327,8 +327,8 @@ export function measureEdges(env: Float32Array, sampleRate: number, options: Edg
   // Levels from a decimated sorted copy (bounded cost on long recordings).
   const stride = Math.max(1, Math.floor(N / 200_000));
   const pick = everyNth(env, stride);
-  const onLevel = selectPercentile(pick, 0.95);
-  const offLevel = selectPercentile(pick, 0.05);
+  const onLevel = selectQuantile(pick, 0.95);
+  const offLevel = selectQuantile(pick, 0.05);
   const threshold = offLevel + 0.5 * (onLevel - offLevel);
   const hyst = 0.1 * (onLevel - offLevel);
   const result: EdgeAnalysis = { marks: [], counts, thresholdLevel: threshold, onLevel, offLevel, warnings };

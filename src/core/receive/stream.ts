@@ -503,14 +503,13 @@ export class StreamDecoder {
     // An indexed loop, not for…of: leaving a for…of by `break` calls the iterator's return(), which
     // the first recording reaches only after the engine has compiled this method.
     for (let i = 0; i < segments.length; i++) {
-      const seg = segments[i]!;
-      if (seg.endSlot > limit) break;
-      if (seg.endSlot <= this.committedSlot) continue;
-      if (seg.startSlot >= realEnd) break;
-      // Cut by what is already committed and by the end of the recording. Always a new object of
-      // the decoder's segment shape (one per committed segment): the code below sees objects of one
-      // kind, and this line runs from the first segment on, not first when a segment is cut.
-      const s: Segment = { kind: seg.kind, startSlot: Math.max(seg.startSlot, this.committedSlot), endSlot: seg.endSlot > realEnd ? realEnd : seg.endSlot, node: seg.node };
+      const s = segments[i]!;
+      if (s.endSlot <= this.committedSlot) continue;
+      if (s.startSlot >= realEnd) break;
+      // Cut by what is already committed and by the end of the recording, in place (traceback makes
+      // new objects at every call). Both stores run for every segment, not first when one is cut.
+      s.startSlot = Math.max(s.startSlot, this.committedSlot);
+      s.endSlot = s.endSlot > realEnd ? realEnd : s.endSlot;
       let startMs = this.slotToMs(s.startSlot);
       let endMs = this.slotToMs(s.endSlot);
       if (s.kind === 'mark') {
