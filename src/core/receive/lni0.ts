@@ -49,3 +49,24 @@ export function lnI0Fast(x: number): number {
   }
   return a - 0.5 * Math.log(2 * Math.PI * a) + 1 / (8 * a) + 9 / (128 * a * a);
 }
+
+/**
+ * lnI0Fast of each of x[from…to) into out[from…to), for the sequence decoder's hot loop: a call
+ * per number there would box the number and its result on the heap whenever the engine does not
+ * inline the call (it stops inlining once a large method has used up its budget).
+ * @example lnI0FastInto(new Float64Array([0, 1]), out, 0, 2) // out[k] = lnI0Fast(x[k])
+ */
+export function lnI0FastInto(x: Float64Array, out: Float64Array, from: number, to: number): void {
+  for (let k = from; k < to; k++) {
+    const v = x[k]!;
+    const a = v < 0 ? -v : v;
+    if (a < FAST_MAX) {
+      const u = a * 64;
+      const i = u | 0;
+      const t0 = FAST_TABLE[i]!;
+      out[k] = t0 + (u - i) * (FAST_TABLE[i + 1]! - t0);
+    } else {
+      out[k] = a - 0.5 * Math.log(2 * Math.PI * a) + 1 / (8 * a) + 9 / (128 * a * a);
+    }
+  }
+}

@@ -57,16 +57,22 @@ export class LevelSlicer {
     this.alphaSignal = 0.35; // per envelope peak, i.e. per mark: follows a fade within a few marks
     this.alphaNoise = Math.min(1, options.slotMs / 1500);
     this.alphaDecay = Math.min(1, options.slotMs / 700);
+    this.updatePowers();
   }
 
-  /** Carrier power of one slot during a mark (|z|² units). */
-  get signalPow(): number {
-    return Math.max(this.peakPow - this.noise, 0) / this.w;
-  }
-
+  /**
+   * Carrier power of one slot during a mark (|z|² units), as of the last step. A field rather than a
+   * getter (both powers are worked out once per step, by updatePowers): a number returned by a call
+   * the engine does not inline is boxed on the heap, and the decoder reads them at every slot.
+   */
+  signalPow = 0;
   /** Noise power of one slot (|z|² units), never more than 20 dB per frame below the carrier. */
-  get noisePow(): number {
-    return Math.max(this.noise, this.signalPow / this.maxSlotSnr, 1e-30);
+  noisePow = 0;
+
+  private updatePowers(): void {
+    const signalPow = Math.max(this.peakPow - this.noise, 0) / this.w;
+    this.signalPow = signalPow;
+    this.noisePow = Math.max(this.noise, signalPow / this.maxSlotSnr, 1e-30);
   }
 
   /** Matched-filter amplitude at the last step, normalised to one slot's noise scale. */
@@ -79,6 +85,21 @@ export class LevelSlicer {
    * and threshold behind it are left in `envelope` and `threshold`: no object per slot).
    */
   step(zr: number, zi: number): boolean {
+    const z = this.input;
+    z[0] = zr;
+    z[1] = zi;
+    return this.stepFrom(z);
+  }
+
+  private readonly input = new Float64Array(2);
+
+  /**
+   * As step, with the slot value [re, im] in z[0], z[1]: a caller in a hot loop passes its own
+   * array, as numbers passed to a call the engine does not inline are boxed on the heap.
+   */
+  stepFrom(z: Float64Array): boolean {
+    const zr = z[0]!;
+    const zi = z[1]!;
     const w = this.w;
     const oldRe = this.ringRe[this.pos]!;
     const oldIm = this.ringIm[this.pos]!;
@@ -134,6 +155,7 @@ export class LevelSlicer {
     }
     this.envelope = amp;
     this.threshold = threshold;
+    this.updatePowers();
     return this.on;
   }
 }

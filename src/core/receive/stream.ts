@@ -106,6 +106,11 @@ export class StreamDecoder {
   private slotRe = 0;
   private slotIm = 0;
   private slotFill = 0;
+  /** The slot being taken [re, im], and the decoder's observation of it [yRe, yIm, q] (see slot). */
+  private readonly slotZ = new Float64Array(2);
+  private readonly slotY = new Float64Array(3);
+  /** The tone tracker's measurement at the slot [mixerHz, stepRad, varianceRad2] (see trackTone). */
+  private readonly toneStep = new Float64Array(3);
   private slicer: LevelSlicer | null = null;
   private decoder: SequenceDecoder | null = null;
   private assembler: Assembler;
@@ -261,6 +266,7 @@ export class StreamDecoder {
       toneHz: toneNow, rateHzPerS: this.toneLine.rateHzPerS, stepS: this.slotMs / 1000,
       toneSigmaHz: 2, rateSigmaHzPerS: drifting ? 0.5 : 1,
     });
+    this.tracker.setLimits(Math.max(1, this.toneStartHz - TONE_RANGE_HZ), Math.min(this.sampleRate / 2 - 1, this.toneStartHz + TONE_RANGE_HZ), TONE_RATE_MAX);
     this.phase = 'run';
     // The pre-roll was mixed before any tracking: retuning now would not change these frames (and
     // nothing mixes while they are replayed, so the frame buffers are read in place).
@@ -295,6 +301,8 @@ export class StreamDecoder {
       const chain = this.makeChain(est, commonK, first.unitMs);
       const k = chain.framesPerSlot;
       const slots = Math.floor(nFrames / k);
+      const z = this.slotZ;
+      const y = this.slotY;
       for (let s = 0; s < slots; s++) {
         let zr = 0;
         let zi = 0;
@@ -302,11 +310,16 @@ export class StreamDecoder {
           zr += this.frameRe[f]!;
           zi += this.frameIm[f]!;
         }
-        chain.slicer.step(zr, zi);
+        z[0] = zr;
+        z[1] = zi;
+        chain.slicer.stepFrom(z);
         const A2 = chain.slicer.signalPow;
         const N = chain.slicer.noisePow;
         const A = Math.sqrt(A2);
-        chain.decoder.step((A / N) * zr, (A / N) * zi, A2 / N);
+        y[0] = (A / N) * zr;
+        y[1] = (A / N) * zi;
+        y[2] = A2 / N;
+        chain.decoder.stepFrom(y);
       }
       const score = chain.decoder.bestScore();
       if (score > bestScore) {
@@ -417,23 +430,37 @@ export class StreamDecoder {
         this.slotRe = 0;
         this.slotIm = 0;
         this.slotFill = 0;
-        this.slot(sr, si);
+        this.slotZ[0] = sr;
+        this.slotZ[1] = si;
+        this.slot();
       }
     }
   }
 
-  private slot(zr: number, zi: number): void {
+  /**
+   * One slot, its value in slotZ. Arrays rather than arguments, here and in the calls it makes, as
+   * numbers passed to a call the engine does not inline are boxed on the heap (several objects per
+   * slot otherwise).
+   */
+  private slot(): void {
     const decoder = this.decoder!;
     const slicer = this.slicer!;
-    const on = slicer.step(zr, zi);
+    const z = this.slotZ;
+    const zr = z[0]!;
+    const zi = z[1]!;
+    const on = slicer.stepFrom(z);
     const A2 = slicer.signalPow;
     const N = slicer.noisePow;
     const A = Math.sqrt(A2);
-    decoder.step((A / N) * zr, (A / N) * zi, A2 / N);
+    const y = this.slotY;
+    y[0] = (A / N) * zr;
+    y[1] = (A / N) * zi;
+    y[2] = A2 / N;
+    decoder.stepFrom(y);
     const ti = decoder.t % decoder.historySlots;
     this.zRe[ti] = zr;
     this.zIm[ti] = zi;
-    this.trackTone(zr, zi, on);
+    this.trackTone(on);
     if (this.options.keepEnvelope) this.keepEnvelopePoint(slicer.envelope, slicer.threshold);
     if (decoder.t % COMMIT_EVERY === 0) this.commit(false);
   }
@@ -443,7 +470,9 @@ export class StreamDecoder {
    * from the mixer; a Kalman filter (ToneTracker) follows the tone and its drift rate, and the
    * mixer is retuned to it.
    */
-  private trackTone(zr: number, zi: number, on: boolean): void {
+  private trackTone(on: boolean): void {
+    const zr = this.slotZ[0]!;
+    const zi = this.slotZ[1]!;
     if (!this.replaying) {
       const tracker = this.tracker!;
       const mixer = this.mixer!;
@@ -454,11 +483,16 @@ export class StreamDecoder {
         const cr = zr * this.prevRe + zi * this.prevIm;
         const ci = zi * this.prevRe - zr * this.prevIm;
         // Phase noise of a slot with carrier-to-noise ratio ρ ≈ 1/(2ρ) [analytic, high SNR], at most
-        // that of a uniform phase; ρ from the slot's own power less the noise.
+        // that of a uniform phase; ρ from the slot's own power p less the noise power N. Written out
+        // for both slots: a call here would box its numbers on the heap.
         const N = this.slicer!.noisePow;
-        tracker.measure(mixer.toneHz, Math.atan2(ci, cr), phaseVariance(p1, N) + phaseVariance(p0, N));
+        const m = this.toneStep;
+        m[0] = mixer.toneHz;
+        m[1] = Math.atan2(ci, cr);
+        m[2] = Math.min(PHASE_VARIANCE_MAX, N / (2 * Math.max(p1 - N, 1e-3 * N))) + Math.min(PHASE_VARIANCE_MAX, N / (2 * Math.max(p0 - N, 1e-3 * N)));
+        tracker.measureFrom(m);
       }
-      tracker.clamp(Math.max(1, this.toneStartHz - TONE_RANGE_HZ), Math.min(this.sampleRate / 2 - 1, this.toneStartHz + TONE_RANGE_HZ), TONE_RATE_MAX);
+      tracker.clamp();
       // Retune (a table rebuild) only when the tracked tone has moved a little.
       if (Math.abs(tracker.toneHz - mixer.toneHz) > RETUNE_HZ) mixer.setTone(tracker.toneHz);
     }
@@ -783,13 +817,8 @@ function trackClass(m: DurationModel, sp: NonNullable<DurationModel['spread']>, 
   m[key] += MEAN_RATE * (d - m[key]);
 }
 
-/**
- * Phase noise of a slot with carrier-to-noise ratio ρ ≈ 1/(2ρ) [analytic, high SNR], at most that of
- * a uniform phase (π²/3); ρ from the slot's own power p less the noise power N.
- */
-function phaseVariance(p: number, N: number): number {
-  return Math.min((Math.PI * Math.PI) / 3, N / (2 * Math.max(p - N, 1e-3 * N)));
-}
+/** A uniform phase's variance, π²/3 [rad²]: the most a slot's phase noise can be (see trackTone). */
+const PHASE_VARIANCE_MAX = (Math.PI * Math.PI) / 3;
 
 /**
  * One step of a class's tracked timing spread, the running mean square of ln(d / mean) plus the

@@ -181,6 +181,23 @@ export class ToneTracker {
    * @param varianceRad2 - Its variance [rad²].
    */
   measure(mixerHz: number, stepRad: number, varianceRad2: number): void {
+    const m = this.input;
+    m[0] = mixerHz;
+    m[1] = stepRad;
+    m[2] = varianceRad2;
+    this.measureFrom(m);
+  }
+
+  private readonly input = new Float64Array(3);
+
+  /**
+   * As measure, with [mixerHz, stepRad, varianceRad2] in m[0…2]: a caller in a hot loop passes its
+   * own array, as numbers passed to a call the engine does not inline are boxed on the heap.
+   */
+  measureFrom(m: Float64Array): void {
+    const mixerHz = m[0]!;
+    const stepRad = m[1]!;
+    const varianceRad2 = m[2]!;
     const k2pi = 2 * Math.PI * this.dt;
     const y = mixerHz + stepRad / k2pi;
     const R = Math.min(varianceRad2, (Math.PI * Math.PI) / 3) / (k2pi * k2pi);
@@ -199,9 +216,24 @@ export class ToneTracker {
     this.prr = prr;
   }
 
-  /** Keeps the tone within [lo, hi] [Hz] and the rate within ±maxRate [Hz/s]. */
-  clamp(lo: number, hi: number, maxRate: number): void {
-    this.f = Math.min(hi, Math.max(lo, this.f));
-    this.r = Math.min(maxRate, Math.max(-maxRate, this.r));
+  private loHz = -Infinity;
+  private hiHz = Infinity;
+  private maxRateHzPerS = Infinity;
+
+  /** Sets the range that clamp keeps the tone [Hz] and its rate [Hz/s] within (none at first). */
+  setLimits(loHz: number, hiHz: number, maxRateHzPerS: number): void {
+    this.loHz = loHz;
+    this.hiHz = hiHz;
+    this.maxRateHzPerS = maxRateHzPerS;
+  }
+
+  /**
+   * Keeps the tone within the limits' [lo, hi] and the rate within ±their maximum. The limits are
+   * set once (setLimits) rather than passed at each slot: numbers passed to a call the engine does
+   * not inline are boxed on the heap.
+   */
+  clamp(): void {
+    this.f = Math.min(this.hiHz, Math.max(this.loHz, this.f));
+    this.r = Math.min(this.maxRateHzPerS, Math.max(-this.maxRateHzPerS, this.r));
   }
 }

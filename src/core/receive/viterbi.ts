@@ -1,5 +1,5 @@
 import type { CodeTrie } from './trie.js';
-import { lnI0Fast } from './lni0.js';
+import { lnI0Fast, lnI0FastInto } from './lni0.js';
 
 /** Mean segment lengths [slots] the decoder expects; updated as the speed is tracked. */
 export interface DurationModel {
@@ -133,6 +133,10 @@ export class SequenceDecoder {
   private readonly llr: Float64Array;
   /** Fade-tolerant mark scores of the current slot, llr's twin for marks longer than a dot. */
   private readonly llrWeak: Float64Array;
+  /** markScores' scratch: ln I0 arguments (three per mark length), their values, and each length's q. */
+  private readonly lnArg: Float64Array;
+  private readonly lnOut: Float64Array;
+  private readonly qOf: Float64Array;
   /** Per slot e: the fade-tolerant score of the block (e − blockSizeAt[e], e] (see markScores). */
   private readonly blockAt: Float64Array;
   private readonly blockSizeAt: Int32Array;
@@ -184,6 +188,10 @@ export class SequenceDecoder {
     for (let i = 1; i < this.n; i++) this.charPrior[i] = trie.text[i] !== null ? CHAR_PRIOR : CHAR_PRIOR + UNKNOWN_PENALTY;
     this.llr = new Float64Array(H);
     this.llrWeak = new Float64Array(H);
+    // (Marks scored directly are at most a block, and a block at most the longest mark: cap slots.)
+    this.lnArg = new Float64Array(3 * (Math.floor(H / 4) + 1));
+    this.lnOut = new Float64Array(this.lnArg.length);
+    this.qOf = new Float64Array(Math.floor(H / 4) + 1);
     this.blockAt = new Float64Array(H);
     this.blockSizeAt = new Int32Array(H);
     this.written = new Int16Array(this.nStates);
@@ -228,6 +236,24 @@ export class SequenceDecoder {
    * @param q - Energy term A²/σ² of the slot, ≥ 0.
    */
   step(yRe: number, yIm: number, q: number): void {
+    const y = this.input;
+    y[0] = yRe;
+    y[1] = yIm;
+    y[2] = q;
+    this.stepFrom(y);
+  }
+
+  private readonly input = new Float64Array(3);
+
+  /**
+   * As step, with the slot's [yRe, yIm, q] in y[0…2]: a caller in a hot loop passes its own array,
+   * as numbers passed to a method the engine does not inline (this one is large) are boxed on the
+   * heap, three objects per slot otherwise.
+   */
+  stepFrom(y: Float64Array): void {
+    const yRe = y[0]!;
+    const yIm = y[1]!;
+    const q = y[2]!;
     const M = this.mask;
     const S = this.nStates;
     const prevT = this.t;
@@ -486,14 +512,29 @@ export class SequenceDecoder {
     const yi = this.yIm[ti]!;
     const yq = this.yQ[ti]!;
     const direct = Math.min(maxMark, block);
+    // markScore(x, q) for each mark of d ≤ block slots, in two passes with no call per number (see
+    // lnI0FastInto): the arguments x, x/2, x/4 at lnArg[3d…3d+2], then their ln I0 at once, then
+    // weakerMarkScore's choice written out.
+    const lnArg = this.lnArg;
+    const ln = this.lnOut;
+    const qd = this.qOf;
     for (let d = 1; d <= direct; d++) {
       const si = (t - d) & M;
       const dr = yr - this.yRe[si]!;
       const di = yi - this.yIm[si]!;
       const x = 2 * Math.sqrt(dr * dr + di * di);
-      const q = yq - this.yQ[si]!;
-      const full = lnI0Fast(x) - q;
-      const fw = weakerMarkScore(full, x, q);
+      qd[d] = yq - this.yQ[si]!;
+      lnArg[3 * d] = x;
+      lnArg[3 * d + 1] = 0.5 * x;
+      lnArg[3 * d + 2] = 0.25 * x;
+    }
+    lnI0FastInto(lnArg, ln, 3, 3 * direct + 3);
+    for (let d = 1; d <= direct; d++) {
+      const q = qd[d]!;
+      const full = ln[3 * d]! - q;
+      const half = ln[3 * d + 1]! - 0.25 * q + WEAKER_PRIOR;
+      const quarter = ln[3 * d + 2]! - q / 16 + WEAKER_PRIOR_12DB;
+      const fw = full > half ? (full > quarter ? full : quarter) : half > quarter ? half : quarter;
       w[d] = fw;
       llr[d] = d >= minWeak ? fw : full;
     }
