@@ -89,8 +89,8 @@ describe('incremental mark scores of the sequence decoder', () => {
       const block = Math.max(1, Math.round(model.dit + model.elementGap));
       const minWeak = Math.max(2, Math.round(model.dit));
       const llr = decoder['llr'] as Float64Array;
-      const durations = decoder['tables'] as { dit: { max: number }; dah: { max: number } };
-      const maxMark = Math.min(Math.max(durations.dit.max, durations.dah.max), t);
+      const durations = decoder['tables'] as { dot: { max: number }; dash: { max: number } };
+      const maxMark = Math.min(Math.max(durations.dot.max, durations.dash.max), t);
       if (t % 7 !== 0) continue; // every 7th slot: enough cases, a fast test
       for (let d = 1; d <= maxMark; d++) {
         const want = referenceLlr(yRe, yIm, q, t - d, t, block, minWeak);

@@ -390,7 +390,9 @@ function fitWordSpeeds(
   words: number,
   typical: ClassLengths,
 ): { factor: Float64Array; shape: ClassLengths } {
-  let shape = { ...typical };
+  // (Written out rather than spread, as in the receiver's copyModel: spreading an object with
+  // fractional fields makes its shape's fields general ones.)
+  let shape: ClassLengths = { dit: typical.dit, dah: typical.dah, element: typical.element };
   const factor = new Float64Array(words).fill(1);
   // (The loops over the marks are leaf functions: this one runs once per recording.)
   for (let round = 0; round < 10; round++) {

@@ -152,7 +152,7 @@ export function estimateTimingCandidates(re: Float64Array, im: Float64Array, n: 
     const best = ranked.find((c) => c.u >= lo && c.u < hi);
     if (best && !chosen.includes(best)) chosen.push(best);
   }
-  return chosen.slice(0, count).map((c) => ({ ...refine(re, im, n, frameMs, c.u, c.w, c.runs), fit: c.score / Math.max(1, c.counted) }));
+  return chosen.slice(0, count).map((c) => refine(re, im, n, frameMs, c.u, c.w, c.runs, c.score / Math.max(1, c.counted)));
 }
 
 // The two loops of each candidate, as leaf functions: called for every candidate, they are compiled
@@ -186,7 +186,7 @@ function scoreRuns(runs: Run[], frameMs: number, u: number): { score: number; ma
 }
 
 /** Unit, gaps and levels from the runs of one candidate slicing. */
-function refine(re: Float64Array, im: Float64Array, n: number, frameMs: number, u: number, w: number, runs: Run[]): Omit<TimingEstimate, 'fit'> {
+function refine(re: Float64Array, im: Float64Array, n: number, frameMs: number, u: number, w: number, runs: Run[], fit: number): TimingEstimate {
   // Refine from the runs that fall near a class.
   let sDit = 0, nDit = 0, sDah = 0, nDah = 0, sGap = 0, nGap = 0;
   const longGaps: number[] = [];
@@ -221,7 +221,19 @@ function refine(re: Float64Array, im: Float64Array, n: number, frameMs: number, 
   const noisePow = nOff ? sOff / nOff : 0;
   const signalPow = Math.max((nOn ? sOn / nOn : 0) - noisePow, 0);
   const markCount = runs.filter((r) => r.on).length;
-  return { unitMs, ditMs, dahMs, elementGapMs, letterGapMs, wordGapMs, signalPow, noisePow, markCount };
+  return { unitMs, ditMs, dahMs, elementGapMs, letterGapMs, wordGapMs, signalPow, noisePow, markCount, fit };
+}
+
+/**
+ * A copy of an estimate with other levels. Written out rather than spread ({ ...e }): the engine
+ * spreads an object with fractional fields by first making those fields of its shape general ones,
+ * which throws away code compiled for the shape (and boxes every later store to them).
+ */
+export function withLevels(e: TimingEstimate, signalPow: number, noisePow: number): TimingEstimate {
+  return {
+    unitMs: e.unitMs, ditMs: e.ditMs, dahMs: e.dahMs, elementGapMs: e.elementGapMs, letterGapMs: e.letterGapMs, wordGapMs: e.wordGapMs,
+    signalPow, noisePow, markCount: e.markCount, fit: e.fit,
+  };
 }
 
 /**

@@ -28,7 +28,7 @@ export class Mixer {
   private readonly st = new Float64Array(8);
   /** Samples summed into the current frame so far. */
   private count = 0;
-  private toneHzValue = 0;
+  private toneHzValue = -0;
 
   /**
    * @param sampleRate - Input sample rate [Hz].

@@ -31,8 +31,8 @@ export class LevelSlicer {
   private readonly ringRe: Float64Array;
   private readonly ringIm: Float64Array;
   private pos = 0;
-  private sumRe = 0;
-  private sumIm = 0;
+  private sumRe = -0;
+  private sumIm = -0;
   private steps = 0;
   /** Tracked full-mark envelope power |S|²/w. */
   private peakPow: number;
@@ -44,8 +44,8 @@ export class LevelSlicer {
   private readonly alphaNoise: number;
   private readonly alphaDecay: number;
   private readonly maxSlotSnr: number;
-  private prevAmp = 0;
-  private prevPrevAmp = 0;
+  private prevAmp = -0;
+  private prevPrevAmp = -0;
 
   constructor(options: SlicerOptions) {
     this.maxSlotSnr = MAX_FRAME_SNR * Math.max(1, options.framesPerSlot);
@@ -65,9 +65,9 @@ export class LevelSlicer {
    * getter (both powers are worked out once per step, by updatePowers): a number returned by a call
    * the engine does not inline is boxed on the heap, and the decoder reads them at every slot.
    */
-  signalPow = 0;
+  signalPow = -0;
   /** Noise power of one slot (|z|² units), never more than 20 dB per frame below the carrier. */
-  noisePow = 0;
+  noisePow = -0;
 
   private updatePowers(): void {
     const signalPow = Math.max(this.peakPow - this.noise, 0) / this.w;
@@ -76,9 +76,9 @@ export class LevelSlicer {
   }
 
   /** Matched-filter amplitude at the last step, normalised to one slot's noise scale. */
-  envelope = 0;
+  envelope = -0;
   /** Decision threshold at the last step, on the same scale. */
-  threshold = 0;
+  threshold = -0;
 
   /**
    * Takes one slot value; returns the key-down decision for the window ending at it (the envelope
@@ -108,7 +108,9 @@ export class LevelSlicer {
     this.ringRe[this.pos] = zr;
     this.ringIm[this.pos] = zi;
     this.pos = (this.pos + 1) % w;
-    if (++this.steps % 4096 === 0) {
+    // (Also at the first step, where the sums are the ring's one value either way: so that this
+    // branch has run before the engine compiles the method, rather than first at step 4096.)
+    if (++this.steps % 4096 === 0 || this.steps === 1) {
       this.sumRe = 0;
       this.sumIm = 0;
       for (let i = 0; i < w; i++) {

@@ -66,7 +66,7 @@ export class LogHistogram {
  */
 export class SnrEstimator {
   private readonly gaps = new LogHistogram();
-  private markSum = 0;
+  private markSum = -0;
   private markCount = 0;
 
   /** Power |z|² of a slot inside a decided mark. */

@@ -1,7 +1,7 @@
 import { InputError, checkRange } from '../errors.js';
 import type { Interval, Timeline } from '../timeline.js';
 import { Assembler, type DecodedCharacter } from './assemble.js';
-import { estimateTimingCandidates, type TimingEstimate } from './estimate-timing.js';
+import { estimateTimingCandidates, withLevels, type TimingEstimate } from './estimate-timing.js';
 import { Mixer } from './mixer.js';
 import { LevelSlicer } from './slicer.js';
 import { SnrEstimator } from './snr.js';
@@ -63,6 +63,11 @@ const RANGE_HI = 3.5;
 const LAG_UNITS = 40;
 /** Traceback period [slots]. */
 const COMMIT_EVERY = 16;
+/**
+ * commit's realEnd when there is none: −1, a small integer as the slots are, rather than Infinity,
+ * which made the engine recompile commit at every recording's end.
+ */
+const NO_END_SLOT = -1;
 /** Reference bandwidth of keyform's SNR [Hz]. */
 const SNR_BANDWIDTH_HZ = 2500;
 /** Most envelope points kept for plotting. */
@@ -103,8 +108,8 @@ export class StreamDecoder {
   private frameMs = FRAME_MS;
   private framesPerSlot = 1;
   private slotMs = FRAME_MS;
-  private slotRe = 0;
-  private slotIm = 0;
+  private slotRe = -0;
+  private slotIm = -0;
   private slotFill = 0;
   /** The slot being taken [re, im], and the decoder's observation of it [yRe, yIm, q] (see slot). */
   private readonly slotZ = new Float64Array(2);
@@ -117,7 +122,7 @@ export class StreamDecoder {
   private committedSlot = 0;
   private zRe = new Float64Array(0);
   private zIm = new Float64Array(0);
-  private toneStartHz = 0;
+  private toneStartHz = -0;
   private replaying = false;
   /** Tone and drift fitted over the pre-roll, and the tracker that follows them afterwards. */
   private toneLine: ToneLine = { startHz: 0, rateHzPerS: 0, segments: 0 };
@@ -127,18 +132,18 @@ export class StreamDecoder {
   private frameCount = 0;
   /** frameCount modulo the ring's length: where the next frame goes. */
   private frameSlot = 0;
-  private lastMarkEndMs = 0;
+  private lastMarkEndMs = -0;
   /** Where refineEdges put the edges of the last mark [ms] (NaN at first: a field for fractional numbers). */
   private refinedStartMs = NaN;
   private refinedEndMs = NaN;
   private afterElementGap = false;
   private prevOn = false;
-  private prevRe = 0;
-  private prevIm = 0;
+  private prevRe = -0;
+  private prevIm = -0;
   private lagSlots = 0;
   private model: DurationModel | null = null;
   private snr = new SnrEstimator();
-  private stats = { unitSum: 0, unitCount: 0, letterGapSum: 0, letterGapCount: 0 };
+  private stats = { unitSum: -0, unitCount: 0, letterGapSum: -0, letterGapCount: 0 };
   private envValues: number[] = [];
   private envThreshold: number[] = [];
   private envDecim = 1;
@@ -297,7 +302,7 @@ export class StreamDecoder {
     // And the same slot grid: a finer grid fits noise better and would favour fast candidates.
     const commonK = Math.min(...candidates.map((c) => this.framesPerSlotFor(c.unitMs)));
     for (const candidate of candidates) {
-      const est = { ...candidate, signalPow, noisePow };
+      const est = withLevels(candidate, signalPow, noisePow);
       const chain = this.makeChain(est, commonK, first.unitMs);
       const k = chain.framesPerSlot;
       const slots = Math.floor(nFrames / k);
@@ -529,7 +534,7 @@ export class StreamDecoder {
   }
 
   /** Makes the decisions older than the lag final (all of them at the end). */
-  private commit(final: boolean, realEnd = Infinity): void {
+  private commit(final: boolean, realEnd = NO_END_SLOT): void {
     const decoder = this.decoder!;
     const limit = final ? decoder.t : decoder.t - this.lagSlots;
     if (limit <= this.committedSlot) return;
@@ -539,11 +544,12 @@ export class StreamDecoder {
     for (let i = 0; i < segments.length; i++) {
       const s = segments[i]!;
       if (s.endSlot <= this.committedSlot) continue;
-      if (s.startSlot >= realEnd) break;
+      // (Each comparison made for every segment, at the end of the recording and before it.)
+      if (s.startSlot >= realEnd && realEnd !== NO_END_SLOT) break;
       // Cut by what is already committed and by the end of the recording, in place (traceback makes
       // new objects at every call). Both stores run for every segment, not first when one is cut.
       s.startSlot = Math.max(s.startSlot, this.committedSlot);
-      s.endSlot = s.endSlot > realEnd ? realEnd : s.endSlot;
+      s.endSlot = s.endSlot > realEnd && realEnd !== NO_END_SLOT ? realEnd : s.endSlot;
       let startMs = this.slotToMs(s.startSlot);
       let endMs = this.slotToMs(s.endSlot);
       if (s.kind === 'mark') {

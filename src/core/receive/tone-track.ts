@@ -141,7 +141,7 @@ export class ToneTracker {
   private f: number;
   private r: number;
   private pff: number;
-  private pfr = 0;
+  private pfr = -0;
   private prr: number;
   private readonly dt: number;
 

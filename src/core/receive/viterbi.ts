@@ -98,6 +98,19 @@ function durationTable(mean: number, spread: number, cap: number, into: Duration
   into.max = max;
 }
 
+/**
+ * A copy of a duration model, its spreads copied too. Written out rather than spread ({ ...m }): the
+ * engine spreads an object with fractional fields by first making those fields of its shape general
+ * ones, which throws away code compiled for the shape (and boxes every later store to them).
+ */
+function copyModel(m: DurationModel): DurationModel {
+  const s = m.spread;
+  return {
+    dit: m.dit, dah: m.dah, elementGap: m.elementGap, letterGap: m.letterGap, wordGap: m.wordGap,
+    spread: s ? { dit: s.dit, dah: s.dah, elementGap: s.elementGap, letterGap: s.letterGap, wordGap: s.wordGap } : undefined,
+  };
+}
+
 function emptyTable(cap: number): DurationTable {
   return { min: 1, max: 0, logP: new Float64Array(cap + 1) };
 }
@@ -153,7 +166,12 @@ export class SequenceDecoder {
   private blockSlots = 4;
   private minWeakSlots = 3;
   /** Duration priors [slots], refreshed in place by setModel. */
-  private readonly tables: { dit: DurationTable; dah: DurationTable; egap: DurationTable; lgap: DurationTable; wgap: DurationTable };
+  /**
+   * (Named dot and dash, not dit and dah: an object made with the same first property names as a
+   * duration model would share its shape, whose fields hold numbers there and tables here, and the
+   * engine would then make them general ones and throw away the code compiled for models.)
+   */
+  private readonly tables: { dot: DurationTable; dash: DurationTable; egap: DurationTable; lgap: DurationTable; wgap: DurationTable };
   private model!: DurationModel;
   /** Index of the last slot processed (slot 0 is the start, before any data). */
   t = 0;
@@ -205,25 +223,25 @@ export class SequenceDecoder {
     this.lastAlive[this.stS] = 0;
     this.score[this.stS] = 0; // slot 0: idle
     const cap = Math.floor(H / 4);
-    this.tables = { dit: emptyTable(cap), dah: emptyTable(cap), egap: emptyTable(cap), lgap: emptyTable(cap), wgap: emptyTable(cap) };
+    this.tables = { dot: emptyTable(cap), dash: emptyTable(cap), egap: emptyTable(cap), lgap: emptyTable(cap), wgap: emptyTable(cap) };
     this.setModel(model);
   }
 
   /** The duration model in use [slots]. */
   get durations(): DurationModel {
-    return { ...this.model, spread: this.model.spread ? { ...this.model.spread } : undefined };
+    return copyModel(this.model);
   }
 
   /** Replaces the expected segment lengths [slots]. */
   setModel(model: DurationModel): void {
-    this.model = { ...model, spread: model.spread ? { ...model.spread } : undefined };
+    this.model = copyModel(model);
     this.blockSlots = Math.max(1, Math.round(model.dit + model.elementGap));
     this.minWeakSlots = Math.max(2, Math.round(model.dit));
     const cap = Math.floor(this.historySlots / 4);
     const spread = model.spread ?? SPREAD;
     const t = this.tables;
-    durationTable(model.dit, spread.dit, cap, t.dit);
-    durationTable(model.dah, spread.dah, cap, t.dah);
+    durationTable(model.dit, spread.dit, cap, t.dot);
+    durationTable(model.dah, spread.dah, cap, t.dash);
     durationTable(model.elementGap, spread.elementGap, cap, t.egap);
     durationTable(model.letterGap, spread.letterGap, cap, t.lgap);
     durationTable(model.wordGap, SPREAD.wordGap, cap, t.wgap);
@@ -263,7 +281,7 @@ export class SequenceDecoder {
     this.yRe[ti] = this.yRe[pi]! + yRe;
     this.yIm[ti] = this.yIm[pi]! + yIm;
     this.yQ[ti] = this.yQ[pi]! + q;
-    const { dit, dah, egap, lgap, wgap } = this.tables;
+    const { dot: dit, dash: dah, egap, lgap, wgap } = this.tables;
     const score = this.score;
     const base = ti * S;
     score.fill(NEG, base, base + S);
@@ -331,18 +349,23 @@ export class SequenceDecoder {
       let best = NEG;
       let bestD = 0;
       let bestPrev = -1;
+      // Every load and comparison made at every d, with no source too (v is then NEG, as adding a
+      // few hundred to −1e300 leaves it unchanged, and so never above best): long runs are rare, and
+      // code first reached minutes into a recording would make the engine throw this method's
+      // compiled code away and compile it again.
       for (let d = table.min; d <= hi; d++) {
         const src = srcScore[(t - d) & M]!;
-        if (src <= NEG) continue;
+        const from = srcState[(t - d) & M]!;
         const v = src + llr[d]! + table.logP[d]!;
-        if (v > best) { best = v; bestD = d; bestPrev = srcState[(t - d) & M]!; }
+        if (v > best) { best = v; bestD = d; bestPrev = from; }
       }
-      if (bestPrev >= 0) {
-        score[base + node] = best;
-        bpDur[base + node] = bestD;
-        bpPrev[base + node] = bestPrev;
-        written[nWritten++] = node;
-      }
+      // Stored at every slot, path or none (best is then NEG, what the row holds already, and a dead
+      // state's back-pointers are never followed), for the same reason.
+      score[base + node] = best;
+      bpDur[base + node] = bestD;
+      bpPrev[base + node] = bestPrev;
+      written[nWritten] = node;
+      nWritten += bestPrev >= 0 ? 1 : 0;
     }
     // Element gaps: after a mark, inside a character.
     {
