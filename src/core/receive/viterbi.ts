@@ -31,6 +31,8 @@ const RESCALE_PHASE = 16;
 const SPREAD = { dit: 0.3, dah: 0.3, elementGap: 0.35, letterGap: 0.35, wordGap: 0.35 } as const;
 /** Log prior of the gap after an element (roughly how often each follows a mark in plain text). */
 const GAP_PRIOR = { elementGap: Math.log(0.6), letterGap: Math.log(0.3), wordGap: Math.log(0.1) };
+const LETTER_GAP_PRIOR = GAP_PRIOR.letterGap;
+const WORD_GAP_PRIOR = GAP_PRIOR.wordGap;
 /** Log prior cost of a mark 6 dB below the tracked amplitude. */
 const WEAKER_PRIOR = -4;
 /** Log prior cost of a mark 12 dB below it (fast fading: the level tracker lags a fade by a few marks). */
@@ -172,7 +174,8 @@ export class SequenceDecoder {
    * engine would then make them general ones and throw away the code compiled for models.)
    */
   private readonly tables: { dot: DurationTable; dash: DurationTable; egap: DurationTable; lgap: DurationTable; wgap: DurationTable };
-  private model!: DurationModel;
+  private model: DurationModel | undefined;
+  private ownSpread: NonNullable<DurationModel['spread']> | undefined;
   /** Index of the last slot processed (slot 0 is the start, before any data). */
   t = 0;
 
@@ -229,12 +232,32 @@ export class SequenceDecoder {
 
   /** The duration model in use [slots]. */
   get durations(): DurationModel {
-    return copyModel(this.model);
+    return copyModel(this.model!);
   }
 
-  /** Replaces the expected segment lengths [slots]. */
+  /**
+   * Replaces the expected segment lengths [slots]. Copied into the decoder's own model object, in
+   * place: the receiver sets a model at every commit, and a new object each time was 7 MB an hour.
+   */
   setModel(model: DurationModel): void {
-    this.model = copyModel(model);
+    const m = (this.model ??= copyModel(model));
+    m.dit = model.dit;
+    m.dah = model.dah;
+    m.elementGap = model.elementGap;
+    m.letterGap = model.letterGap;
+    m.wordGap = model.wordGap;
+    const from = model.spread;
+    if (from) {
+      const to = (this.ownSpread ??= { dit: -0, dah: -0, elementGap: -0, letterGap: -0, wordGap: -0 });
+      to.dit = from.dit;
+      to.dah = from.dah;
+      to.elementGap = from.elementGap;
+      to.letterGap = from.letterGap;
+      to.wordGap = from.wordGap;
+      m.spread = to;
+    } else {
+      m.spread = undefined;
+    }
     this.blockSlots = Math.max(1, Math.round(model.dit + model.elementGap));
     this.minWeakSlots = Math.max(2, Math.round(model.dit));
     const cap = Math.floor(this.historySlots / 4);
@@ -390,8 +413,8 @@ export class SequenceDecoder {
       }
     }
     // Letter and word gaps: close the best character that ended where the gap starts.
-    if (this.closeGap(lgap, GAP_PRIOR.letterGap, stR, t, base)) written[nWritten++] = stR;
-    const wordGapWritten = this.closeGap(wgap, GAP_PRIOR.wordGap, stS, t, base);
+    if (this.closeGap(lgap, stR, t, base)) written[nWritten++] = stR;
+    const wordGapWritten = this.closeGap(wgap, stS, t, base);
     // Idle: a word gap may go on for any length.
     const idle = score[pi * S + stS]!;
     if (idle > score[base + stS]!) {
@@ -451,9 +474,11 @@ export class SequenceDecoder {
   /**
    * A letter or word gap ending at slot t (its row starts at `base`): closes the best character
    * that ended where the gap starts. A method rather than a callback made in step, which would be
-   * a new function object at every slot. Returns 1 when the state got a score.
+   * a new function object at every slot. Returns 1 when the state got a score. (The gap's prior
+   * follows from the state, not passed: a number passed to a call that is not inlined is boxed.)
    */
-  private closeGap(table: DurationTable, prior: number, state: number, t: number, base: number): number {
+  private closeGap(table: DurationTable, state: number, t: number, base: number): number {
+    const prior = state === this.stS ? WORD_GAP_PRIOR : LETTER_GAP_PRIOR;
     const M = this.mask;
     const hi = Math.min(table.max, t);
     let best = NEG;
