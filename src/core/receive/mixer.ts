@@ -1,3 +1,5 @@
+import { FRACTIONAL_ZERO } from './fractional.js';
+
 /**
  * Quadrature mixer and first decimation stage: multiplies the input by e^(−j·2π·toneHz·n/sampleRate)
  * and sums `samplesPerFrame` products into one complex frame (a boxcar, i.e. first-order CIC,
@@ -28,7 +30,7 @@ export class Mixer {
   private readonly st = new Float64Array(8);
   /** Samples summed into the current frame so far. */
   private count = 0;
-  private toneHzValue = -0;
+  private toneHzValue = FRACTIONAL_ZERO;
 
   /**
    * @param sampleRate - Input sample rate [Hz].

@@ -1,3 +1,5 @@
+import { FRACTIONAL_ZERO } from './fractional.js';
+
 /**
  * Level tracking and slicing at the slot rate: a matched filter (coherent sum over about one unit),
  * a signal level that follows the marks (and decays through fades), a noise level that follows the
@@ -31,8 +33,8 @@ export class LevelSlicer {
   private readonly ringRe: Float64Array;
   private readonly ringIm: Float64Array;
   private pos = 0;
-  private sumRe = -0;
-  private sumIm = -0;
+  private sumRe = FRACTIONAL_ZERO;
+  private sumIm = FRACTIONAL_ZERO;
   private steps = 0;
   /** Tracked full-mark envelope power |S|²/w. */
   private peakPow: number;
@@ -44,8 +46,8 @@ export class LevelSlicer {
   private readonly alphaNoise: number;
   private readonly alphaDecay: number;
   private readonly maxSlotSnr: number;
-  private prevAmp = -0;
-  private prevPrevAmp = -0;
+  private prevAmp = FRACTIONAL_ZERO;
+  private prevPrevAmp = FRACTIONAL_ZERO;
 
   constructor(options: SlicerOptions) {
     this.maxSlotSnr = MAX_FRAME_SNR * Math.max(1, options.framesPerSlot);
@@ -65,9 +67,9 @@ export class LevelSlicer {
    * getter (both powers are worked out once per step, by updatePowers): a number returned by a call
    * the engine does not inline is boxed on the heap, and the decoder reads them at every slot.
    */
-  signalPow = -0;
+  signalPow = FRACTIONAL_ZERO;
   /** Noise power of one slot (|z|² units), never more than 20 dB per frame below the carrier. */
-  noisePow = -0;
+  noisePow = FRACTIONAL_ZERO;
 
   private updatePowers(): void {
     const signalPow = Math.max(this.peakPow - this.noise, 0) / this.w;
@@ -76,9 +78,9 @@ export class LevelSlicer {
   }
 
   /** Matched-filter amplitude at the last step, normalised to one slot's noise scale. */
-  envelope = -0;
+  envelope = FRACTIONAL_ZERO;
   /** Decision threshold at the last step, on the same scale. */
-  threshold = -0;
+  threshold = FRACTIONAL_ZERO;
 
   /**
    * Takes one slot value; returns the key-down decision for the window ending at it (the envelope

@@ -1,3 +1,5 @@
+import { FRACTIONAL_ZERO } from './fractional.js';
+
 /**
  * SNR estimate from decided marks and gaps, robust to the few slots that straddle a keying edge.
  *
@@ -66,7 +68,7 @@ export class LogHistogram {
  */
 export class SnrEstimator {
   private readonly gaps = new LogHistogram();
-  private markSum = -0;
+  private markSum = FRACTIONAL_ZERO;
   private markCount = 0;
 
   /** Power |z|² of a slot inside a decided mark. */

@@ -9,6 +9,7 @@ import { findTone } from './tone.js';
 import { fitToneLineFrames, ToneTracker, type ToneLine } from './tone-track.js';
 import { buildCodeTrie, type CodeTrie } from './trie.js';
 import { SequenceDecoder, type DurationModel, type Segment } from './viterbi.js';
+import { FRACTIONAL_ZERO } from './fractional.js';
 
 export interface DecodeResult extends Timeline {
   /** Carrier tone [Hz], or null when no keyed signal was found. */
@@ -92,10 +93,10 @@ export class StreamDecoder {
   private phase: 'search' | 'run' | 'done' = 'search';
   private preroll: Float32Array;
   private preLen = 0;
-  // -0 rather than 0: the same sums, but a field the engine holds as a fraction from the start, so
-  // the millisecond arithmetic below (sample × 1000 passes 2^31 after 45 s at 48 kHz) is compiled
-  // for fractions once, instead of for small integers first and again when they overflow.
-  private originSample = -0;
+  // A fraction field from the start (see FRACTIONAL_ZERO): the millisecond arithmetic below (sample ×
+  // 1000 passes 2^31 after 45 s at 48 kHz) is then compiled for fractions once, instead of for small
+  // integers first and again when they overflow. The fields below that hold fractions start so too.
+  private originSample = FRACTIONAL_ZERO;
   private samplesIn = 0;
   private noSignalReason: string | null = null;
 
@@ -108,8 +109,8 @@ export class StreamDecoder {
   private frameMs = FRAME_MS;
   private framesPerSlot = 1;
   private slotMs = FRAME_MS;
-  private slotRe = -0;
-  private slotIm = -0;
+  private slotRe = FRACTIONAL_ZERO;
+  private slotIm = FRACTIONAL_ZERO;
   private slotFill = 0;
   /** The slot being taken [re, im], and the decoder's observation of it [yRe, yIm, q] (see slot). */
   private readonly slotZ = new Float64Array(2);
@@ -122,7 +123,7 @@ export class StreamDecoder {
   private committedSlot = 0;
   private zRe = new Float64Array(0);
   private zIm = new Float64Array(0);
-  private toneStartHz = -0;
+  private toneStartHz = FRACTIONAL_ZERO;
   private replaying = false;
   /** Tone and drift fitted over the pre-roll, and the tracker that follows them afterwards. */
   private toneLine: ToneLine = { startHz: 0, rateHzPerS: 0, segments: 0 };
@@ -132,18 +133,18 @@ export class StreamDecoder {
   private frameCount = 0;
   /** frameCount modulo the ring's length: where the next frame goes. */
   private frameSlot = 0;
-  private lastMarkEndMs = -0;
+  private lastMarkEndMs = FRACTIONAL_ZERO;
   /** Where refineEdges put the edges of the last mark [ms] (NaN at first: a field for fractional numbers). */
   private refinedStartMs = NaN;
   private refinedEndMs = NaN;
   private afterElementGap = false;
   private prevOn = false;
-  private prevRe = -0;
-  private prevIm = -0;
+  private prevRe = FRACTIONAL_ZERO;
+  private prevIm = FRACTIONAL_ZERO;
   private lagSlots = 0;
   private model: DurationModel | null = null;
   private snr = new SnrEstimator();
-  private stats = { unitSum: -0, unitCount: 0, letterGapSum: -0, letterGapCount: 0 };
+  private stats = { unitSum: FRACTIONAL_ZERO, unitCount: 0, letterGapSum: FRACTIONAL_ZERO, letterGapCount: 0 };
   private envValues: number[] = [];
   private envThreshold: number[] = [];
   private envDecim = 1;

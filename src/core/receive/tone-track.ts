@@ -4,6 +4,7 @@
  */
 import FFT from 'fft.js';
 import { Mixer } from './mixer.js';
+import { FRACTIONAL_ZERO } from './fractional.js';
 
 /** A straight-line tone track: toneHz(t) = startHz + rateHzPerS · t. */
 export interface ToneLine {
@@ -141,7 +142,7 @@ export class ToneTracker {
   private f: number;
   private r: number;
   private pff: number;
-  private pfr = -0;
+  private pfr = FRACTIONAL_ZERO;
   private prr: number;
   private readonly dt: number;
 

@@ -1,5 +1,6 @@
 import type { CodeTrie } from './trie.js';
 import { lnI0Fast, lnI0FastInto } from './lni0.js';
+import { FRACTIONAL_ZERO } from './fractional.js';
 
 /** Mean segment lengths [slots] the decoder expects; updated as the speed is tracked. */
 export interface DurationModel {
@@ -248,7 +249,7 @@ export class SequenceDecoder {
     m.wordGap = model.wordGap;
     const from = model.spread;
     if (from) {
-      const to = (this.ownSpread ??= { dit: -0, dah: -0, elementGap: -0, letterGap: -0, wordGap: -0 });
+      const to = (this.ownSpread ??= { dit: FRACTIONAL_ZERO, dah: FRACTIONAL_ZERO, elementGap: FRACTIONAL_ZERO, letterGap: FRACTIONAL_ZERO, wordGap: FRACTIONAL_ZERO });
       to.dit = from.dit;
       to.dah = from.dah;
       to.elementGap = from.elementGap;
