@@ -82,9 +82,16 @@ function slice(env: Float64Array, n: number, minRun: number): { runs: Run[]; low
   let changed = true;
   while (changed && runs.length > 2) {
     changed = false;
+    // The first of the shortest interior runs under minRun (each comparison made for every run, so
+    // that none is new to the engine when the first short run turns up).
     let shortest = -1;
+    let shortestLength = minRun;
     for (let i = 1; i < runs.length - 1; i++) {
-      if (runs[i]!.length < minRun && (shortest < 0 || runs[i]!.length < runs[shortest]!.length)) shortest = i;
+      const length = runs[i]!.length;
+      if (length < shortestLength) {
+        shortest = i;
+        shortestLength = length;
+      }
     }
     if (shortest > 0) {
       const prev = runs[shortest - 1]!;
