@@ -8,7 +8,8 @@
  * the output arrays. Deliberately much wider than a receiver's filter: a narrow filter lengthens
  * the edges it is asked to measure.
  */
-import FFT from 'fft.js';
+import type FFT from 'fft.js';
+import { fftOfSize } from '../signal/fft.js';
 import { checkRange, InputError } from '../errors.js';
 
 export interface BasebandOptions {
@@ -74,7 +75,7 @@ export function complexBaseband(samples: Float32Array, sampleRate: number, optio
   const N = Math.max(1 << 15, 4 * guard);
   const step = N - 2 * guard;
   const gain = bandGain(N, sampleRate, lowHz, highHz, taperHz);
-  const fft = new FFT(N);
+  const fft = fftOfSize(N);
   const frame = new Float64Array(N);
   const spec = fft.createComplexArray();
   const time = fft.createComplexArray();

@@ -2,7 +2,8 @@
  * Noise floor of a recording from its key-up stretches, so that bandwidth figures describe the
  * transmitter rather than the recording's noise.
  */
-import FFT from 'fft.js';
+import type FFT from 'fft.js';
+import { fftOfSize } from '../signal/fft.js';
 import { addSegment, hannWindow, nearestPowerOfTwo } from './spectrum.js';
 
 export interface NoiseDensity {
@@ -32,7 +33,7 @@ export function noiseDensityFromGaps(
   const w = hannWindow(L);
   let sumW2 = 0;
   for (const x of w) sumW2 += x * x;
-  const fft = new FFT(L);
+  const fft = fftOfSize(L);
   const frame = new Float64Array(L);
   const out = fft.createComplexArray();
   const acc = new Float64Array(L / 2 + 1);

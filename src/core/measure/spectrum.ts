@@ -6,7 +6,8 @@
  * (segment − hop) at both ends every sample carries the same weight and the bin powers add up to
  * the record's mean power exactly (Parseval) [analytic].
  */
-import FFT from 'fft.js';
+import type FFT from 'fft.js';
+import { fftOfSize } from '../signal/fft.js';
 import { checkRange, InputError } from '../errors.js';
 
 /** Equivalent noise bandwidth of the Hann window, in bins [analytic: Σw² · L / (Σw)² = 1.5]. */
@@ -81,7 +82,7 @@ export function welchSpectrum(samples: Float32Array, sampleRate: number, options
   if (N === 0) throw new InputError('no samples to analyse');
   const hop = L / 4;
   const w = hannWindow(L);
-  const fft = new FFT(L);
+  const fft = fftOfSize(L);
   const frame = new Float64Array(L);
   const out = fft.createComplexArray();
   const acc = new Float64Array(L / 2 + 1);

@@ -2,7 +2,7 @@
  * Tone tracking for the receiver: a fit of the tone's drift over the pre-roll, and a Kalman filter
  * that follows the tone and its drift rate from the phase steps of key-down slots afterwards.
  */
-import FFT from 'fft.js';
+import { fftOfSize } from '../signal/fft.js';
 import { Mixer } from './mixer.js';
 import { FRACTIONAL_ZERO } from './fractional.js';
 
@@ -41,7 +41,7 @@ export function fitToneLineFrames(frameRe: Float64Array, frameIm: Float64Array, 
   const hop = win >> 1;
   let size = 1;
   while (size < win) size *= 2;
-  const fft = new FFT(size);
+  const fft = fftOfSize(size);
   const input = fft.createComplexArray();
   const out = fft.createComplexArray();
   const power = new Float64Array(size);

@@ -1,4 +1,4 @@
-import FFT from 'fft.js';
+import { fftOfSize } from '../signal/fft.js';
 import { addSegment, hannWindow } from '../measure/spectrum.js';
 
 export interface ToneSearchOptions {
@@ -40,7 +40,7 @@ export function findTone(samples: Float32Array, sampleRate: number, options: Ton
   while (size < sampleRate / 2) size *= 2;
   while (size > 256 && size > samples.length) size /= 2;
   if (samples.length < 256 || maxHz <= minHz) return { toneHz: 0, prominenceDb: 0, found: false };
-  const fft = new FFT(size);
+  const fft = fftOfSize(size);
   const window = hannWindow(size);
   const frame = new Float64Array(size);
   const out = fft.createComplexArray();
