@@ -89,6 +89,12 @@ const TRIE: CodeTrie = buildCodeTrie();
 export class StreamDecoder {
   private readonly sampleRate: number;
   private readonly options: DecodeOptions;
+  /**
+   * options.keepEnvelope, read once: the per-slot code reads this field rather than the caller's
+   * options object, whose shape differs from one caller (and recording) to the next, which would
+   * make the engine compile that code again.
+   */
+  private readonly keepEnvelope: boolean;
   private readonly warnings: string[] = [];
   private phase: 'search' | 'run' | 'done' = 'search';
   private preroll: Float32Array;
@@ -163,6 +169,7 @@ export class StreamDecoder {
     }
     this.sampleRate = sampleRate;
     this.options = options;
+    this.keepEnvelope = options.keepEnvelope === true;
     this.preroll = new Float32Array(Math.round((PREROLL_MS / 1000) * sampleRate));
     this.assembler = new Assembler(TRIE, options.onText);
   }
@@ -467,7 +474,7 @@ export class StreamDecoder {
     this.zRe[ti] = zr;
     this.zIm[ti] = zi;
     this.trackTone(on);
-    if (this.options.keepEnvelope) this.keepEnvelopePoint(slicer.envelope, slicer.threshold);
+    if (this.keepEnvelope) this.keepEnvelopePoint(slicer.envelope, slicer.threshold);
     if (decoder.t % COMMIT_EVERY === 0) this.commit(false);
   }
 
