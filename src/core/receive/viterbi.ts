@@ -114,6 +114,11 @@ function copyModel(m: DurationModel): DurationModel {
   };
 }
 
+/** Subtracts `top` from every live score (above NEG) of a[0…n). */
+function shiftLive(a: Float64Array, n: number, top: number): void {
+  for (let k = 0; k < n; k++) if (a[k]! > NEG) a[k] = a[k]! - top;
+}
+
 function emptyTable(cap: number): DurationTable {
   return { min: 1, max: 0, logP: new Float64Array(cap + 1) };
 }
@@ -175,8 +180,9 @@ export class SequenceDecoder {
    * engine would then make them general ones and throw away the code compiled for models.)
    */
   private readonly tables: { dot: DurationTable; dash: DurationTable; egap: DurationTable; lgap: DurationTable; wgap: DurationTable };
-  private model: DurationModel | undefined;
-  private ownSpread: NonNullable<DurationModel['spread']> | undefined;
+  // (Both set in the constructor, so that every decoder has the same fields whatever its first model.)
+  private model: DurationModel | undefined = undefined;
+  private ownSpread: NonNullable<DurationModel['spread']> | undefined = undefined;
   /** Index of the last slot processed (slot 0 is the start, before any data). */
   t = 0;
 
@@ -505,9 +511,12 @@ export class SequenceDecoder {
     let top = NEG;
     for (let s = 0; s < S; s++) top = Math.max(top, score[base + s]!);
     if (top <= NEG) return;
-    for (let k = 0; k < H * S; k++) if (score[k]! > NEG) score[k] = score[k]! - top;
-    for (let k = 0; k < H; k++) if (this.bestChar[k]! > NEG) this.bestChar[k] = this.bestChar[k]! - top;
-    for (const ring of this.longSrcScore) for (let k = 0; k < H; k++) if (ring[k]! > NEG) ring[k] = ring[k]! - top;
+    // (One leaf loop for all four arrays: loops one after another in this method, run once in a
+    // while, were compiled in the middle of the first and sent back to slow code at the next.)
+    shiftLive(score, H * S, top);
+    shiftLive(this.bestChar, H, top);
+    shiftLive(this.longSrcScore[0], H, top);
+    shiftLive(this.longSrcScore[1], H, top);
   }
 
   /** Score of the best path so far (log-likelihood ratio against noise plus log priors). */
