@@ -294,12 +294,17 @@ interface EdgeGate {
  * signal); never without an SNR estimate. Predictions (no noise) pass as they are.
  */
 function gateEdges(pass: EnvelopePass, snr: ShapeSnr | null, minEdgeDb: number): EdgeGate {
-  const predicted = snr === null;
-  const snrDb = snr?.snrDb ?? null;
+  // The SNR object's two figures read here, the rest in gateOnSnr: the SNR objects come in several
+  // shapes (copies with a field added or replaced), which sent the compiled loop below back to slow
+  // code and had it compiled again for each new shape.
+  return gateOnSnr(pass, snr === null, snr?.snrDb ?? null, snr?.noisePower ?? 0, minEdgeDb);
+}
+
+function gateOnSnr(pass: EnvelopePass, predicted: boolean, snrDb: number | null, noisePower: number, minEdgeDb: number): EdgeGate {
   if (predicted) return { ok: true, edges: pass.edges, tracks: pass.chirpTracks, snippets: pass.snippets, weak: 0 };
   const none: EdgeGate = { ok: false, edges: { ...pass.edges, marks: [] }, tracks: [], snippets: [], weak: 0 };
   if (snrDb === null) return none;
-  const pOff = snr!.noisePower ?? 0;
+  const pOff = noisePower;
   const bandHz = envelopeNoiseBandwidthHz(pass.baseband);
   let weak = 0;
   const marks: MarkShape[] = [];

@@ -306,8 +306,8 @@ export function measureTiming(timeline: { marks: readonly Interval[] }, options:
   // the word's own speed, so drift is not counted as jitter), with the character's own offset
   // removed. Degrees of freedom: edges − 1 per character − 1 per word (its fitted speed).
   const chars = characterRuns(marks.length, gapClass);
-  const { ssr, dof: charDof } = jitterSums(marks, chars, isDah, shape, scale);
-  const dof = charDof - wordWpm.length;
+  const ssr = jitterSsr(marks, chars, isDah, shape, scale);
+  const dof = edgeDof(chars) - wordWpm.length;
   const jitterPct = dof > 0 ? (100 * Math.sqrt(ssr / dof)) / unit : null;
 
   let driftWpm: number | null = null;
@@ -478,24 +478,25 @@ function characterRuns(markCount: number, gapClass: readonly GapClass[]): number
   return chars;
 }
 
-/** Sum of squared edge residuals against the fitted grid, each character's offset removed, and their degrees of freedom (edges − 1 per character). */
-function jitterSums(
-  marks: readonly Interval[],
-  chars: readonly number[][],
-  isDah: readonly boolean[],
-  shape: ClassLengths,
-  scale: Float64Array,
-): { ssr: number; dof: number } {
+/**
+ * Sum of squared edge residuals against the fitted grid, each character's offset removed. (Numbers
+ * returned, not an object: the engine compiled this loop in mid-run at every recording, and an object
+ * made after it, never made before, sent the compiled code back to slow code each time.)
+ */
+function jitterSsr(marks: readonly Interval[], chars: readonly number[][], isDah: readonly boolean[], shape: ClassLengths, scale: Float64Array): number {
   let ssr = 0;
-  let dof = 0;
-  for (const ch of chars) {
-    ssr += characterSsr(marks, ch, isDah, shape, scale);
-    dof += 2 * ch.length - 1;
-  }
-  return { ssr, dof };
+  for (let c = 0; c < chars.length; c++) ssr += characterSsr(marks, chars[c]!, isDah, shape, scale);
+  return ssr;
 }
 
-/** One character's sum of squared edge residuals, its own offset removed (see jitterSums). */
+/** Degrees of freedom of jitterSsr's sum: edges − 1 per character. */
+function edgeDof(chars: readonly number[][]): number {
+  let dof = 0;
+  for (let c = 0; c < chars.length; c++) dof += 2 * chars[c]!.length - 1;
+  return dof;
+}
+
+/** One character's sum of squared edge residuals, its own offset removed (see jitterSsr). */
 function characterSsr(marks: readonly Interval[], ch: readonly number[], isDah: readonly boolean[], shape: ClassLengths, scale: Float64Array): number {
   const resid: number[] = [];
   let t = 0;
