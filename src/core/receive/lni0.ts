@@ -47,6 +47,11 @@ export function lnI0Fast(x: number): number {
     const t0 = FAST_TABLE[i]!;
     return t0 + f * (FAST_TABLE[i + 1]! - t0);
   }
+  return lnI0Asymptotic(a);
+}
+
+/** ln I0(a) for a ≥ 64 by the asymptotic expansion (see lnI0Fast). */
+function lnI0Asymptotic(a: number): number {
   return a - 0.5 * Math.log(2 * Math.PI * a) + 1 / (8 * a) + 9 / (128 * a * a);
 }
 
@@ -66,7 +71,7 @@ export function lnI0FastInto(x: Float64Array, out: Float64Array, from: number, t
       const t0 = FAST_TABLE[i]!;
       out[k] = t0 + (u - i) * (FAST_TABLE[i + 1]! - t0);
     } else {
-      out[k] = a - 0.5 * Math.log(2 * Math.PI * a) + 1 / (8 * a) + 9 / (128 * a * a);
+      out[k] = lnI0Asymptotic(a);
     }
   }
 }

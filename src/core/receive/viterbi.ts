@@ -101,17 +101,38 @@ function durationTable(mean: number, spread: number, cap: number, into: Duration
   into.max = max;
 }
 
+type Spread = NonNullable<DurationModel['spread']>;
+
+/** A model or spread object of its own, to be filled by copyModelInto (fields fractional from the start). */
+function blankSpread(): Spread {
+  return { dit: FRACTIONAL_ZERO, dah: FRACTIONAL_ZERO, elementGap: FRACTIONAL_ZERO, letterGap: FRACTIONAL_ZERO, wordGap: FRACTIONAL_ZERO };
+}
+function blankModel(): DurationModel {
+  return { dit: FRACTIONAL_ZERO, dah: FRACTIONAL_ZERO, elementGap: FRACTIONAL_ZERO, letterGap: FRACTIONAL_ZERO, wordGap: FRACTIONAL_ZERO, spread: undefined };
+}
+
 /**
- * A copy of a duration model, its spreads copied too. Written out rather than spread ({ ...m }): the
- * engine spreads an object with fractional fields by first making those fields of its shape general
- * ones, which throws away code compiled for the shape (and boxes every later store to them).
+ * Copies a duration model into `to`, its spreads (if any) into `toSpread`, field by field rather
+ * than spread ({ ...m }): the engine spreads an object with fractional fields by first making those
+ * fields of its shape general ones, which throws away code compiled for the shape.
  */
-function copyModel(m: DurationModel): DurationModel {
-  const s = m.spread;
-  return {
-    dit: m.dit, dah: m.dah, elementGap: m.elementGap, letterGap: m.letterGap, wordGap: m.wordGap,
-    spread: s ? { dit: s.dit, dah: s.dah, elementGap: s.elementGap, letterGap: s.letterGap, wordGap: s.wordGap } : undefined,
-  };
+function copyModelInto(from: DurationModel, to: DurationModel, toSpread: Spread): void {
+  to.dit = from.dit;
+  to.dah = from.dah;
+  to.elementGap = from.elementGap;
+  to.letterGap = from.letterGap;
+  to.wordGap = from.wordGap;
+  const s = from.spread;
+  if (s) {
+    toSpread.dit = s.dit;
+    toSpread.dah = s.dah;
+    toSpread.elementGap = s.elementGap;
+    toSpread.letterGap = s.letterGap;
+    toSpread.wordGap = s.wordGap;
+    to.spread = toSpread;
+  } else {
+    to.spread = undefined;
+  }
 }
 
 /** Subtracts `top` from every live score (above NEG) of a[0…n). */
@@ -180,9 +201,9 @@ export class SequenceDecoder {
    * engine would then make them general ones and throw away the code compiled for models.)
    */
   private readonly tables: { dot: DurationTable; dash: DurationTable; egap: DurationTable; lgap: DurationTable; wgap: DurationTable };
-  // (Both set in the constructor, so that every decoder has the same fields whatever its first model.)
-  private model: DurationModel | undefined = undefined;
-  private ownSpread: NonNullable<DurationModel['spread']> | undefined = undefined;
+  /** The model in use, the decoder's own objects, refilled in place by setModel. */
+  private readonly model = blankModel();
+  private readonly modelSpread = blankSpread();
   /** Index of the last slot processed (slot 0 is the start, before any data). */
   t = 0;
 
@@ -239,7 +260,9 @@ export class SequenceDecoder {
 
   /** The duration model in use [slots]. */
   get durations(): DurationModel {
-    return copyModel(this.model!);
+    const out = blankModel();
+    copyModelInto(this.model, out, blankSpread());
+    return out;
   }
 
   /**
@@ -247,24 +270,7 @@ export class SequenceDecoder {
    * place: the receiver sets a model at every commit, and a new object each time was 7 MB an hour.
    */
   setModel(model: DurationModel): void {
-    const m = (this.model ??= copyModel(model));
-    m.dit = model.dit;
-    m.dah = model.dah;
-    m.elementGap = model.elementGap;
-    m.letterGap = model.letterGap;
-    m.wordGap = model.wordGap;
-    const from = model.spread;
-    if (from) {
-      const to = (this.ownSpread ??= { dit: FRACTIONAL_ZERO, dah: FRACTIONAL_ZERO, elementGap: FRACTIONAL_ZERO, letterGap: FRACTIONAL_ZERO, wordGap: FRACTIONAL_ZERO });
-      to.dit = from.dit;
-      to.dah = from.dah;
-      to.elementGap = from.elementGap;
-      to.letterGap = from.letterGap;
-      to.wordGap = from.wordGap;
-      m.spread = to;
-    } else {
-      m.spread = undefined;
-    }
+    copyModelInto(model, this.model, this.modelSpread);
     this.blockSlots = Math.max(1, Math.round(model.dit + model.elementGap));
     this.minWeakSlots = Math.max(2, Math.round(model.dit));
     const cap = Math.floor(this.historySlots / 4);

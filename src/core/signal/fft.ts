@@ -3,6 +3,7 @@ import FFT from 'fft.js';
 /** Largest transform kept for reuse [points]: its tables are about 1.5 MB. */
 const REUSE_MAX_SIZE = 1 << 16;
 const bySize = new Map<number, FFT>();
+let primed = false;
 
 /**
  * A fft.js transform of `size` points (a power of two, ≥ 2). Sizes up to 65,536 are made once and
@@ -13,6 +14,10 @@ const bySize = new Map<number, FFT>();
  * @example fftOfSize(1024).realTransform(out, frame)
  */
 export function fftOfSize(size: number): FFT {
+  if (!primed) {
+    primed = true;
+    primeTransforms();
+  }
   if (size > REUSE_MAX_SIZE) return new FFT(size);
   let fft = bySize.get(size);
   if (!fft) {
@@ -23,10 +28,12 @@ export function fftOfSize(size: number): FFT {
 }
 
 /**
- * Runs each fft.js entry point keyform uses ten times at load, on a transform whose size takes the
- * radix-4 path and one whose size takes the radix-2 path, so that the engine has recorded every
- * operation in them before it compiles them: otherwise a path first met in a later recording (another
- * size, the inverse) sends the compiled code back to slow code and has it compiled again.
+ * Runs each fft.js entry point keyform uses ten times, on a transform whose size takes the radix-4
+ * path and one whose size takes the radix-2 path, so that the engine has recorded every operation in
+ * them before it compiles them: otherwise a path first met in a later recording (another size, the
+ * inverse) sends the compiled code back to slow code and has it compiled again. Run before the first
+ * transform is handed out, not at load, so that start-up and commands that never transform do not
+ * pay its 10 ms.
  */
 function primeTransforms(): void {
   for (const size of [16, 32]) {
@@ -42,4 +49,3 @@ function primeTransforms(): void {
     }
   }
 }
-primeTransforms();
