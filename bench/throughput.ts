@@ -146,14 +146,28 @@ function timeCli(args: string[]): { wallS: number; cpuS: number | null; maxRssMB
 }
 
 /**
- * Control for the batch speed-up: the same fixed CPU work (a plain arithmetic loop) split over 1 and
- * over 2 worker threads. Its speed-up is what the machine can give right now; on an idle 2-core
- * machine it is close to 2, on a shared one less.
+ * Controls for the batch speed-up: the same fixed CPU work split over 1 and over 2 worker threads.
+ * Their speed-up is what the machine can give right now; on an idle 2-core machine it is close to
+ * 2, on a shared one less. Two kinds of work: `loop`, one dependent chain of square roots (the core
+ * waits on each result, so a core shared with a neighbour loses little), and `array`, four
+ * independent multiply-add chains over a 1 MiB array (beyond the first-level cache, as the
+ * decoder's score ring is: the core's arithmetic units and caches are kept busy, as by real work).
  */
-async function controlSpeedup(tasks = 4): Promise<{ oneS: number; twoS: number }> {
+async function controlSpeedup(kind: 'loop' | 'array', tasks = 4): Promise<{ oneS: number; twoS: number }> {
   const { Worker } = await import('node:worker_threads');
   const code = `const { parentPort } = require('node:worker_threads');
-    parentPort.on('message', (n) => { let x = 0; for (let i = 0; i < n; i++) x += Math.sqrt(i); parentPort.postMessage(x); });`;
+    const a = new Float64Array(1 << 17).map((_, i) => 1 + i * 1e-9);
+    const work = {
+      loop: (n) => { let x = 0; for (let i = 0; i < n; i++) x += Math.sqrt(i); return x; },
+      array: (n) => {
+        let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
+        for (let j = 0; j < n / a.length; j++) {
+          for (let i = 0; i < a.length; i += 4) { s0 += a[i] * 1.0000001; s1 += a[i + 1] * 0.9999999; s2 += a[i + 2] * 1.0000002; s3 += a[i + 3] * 0.9999998; }
+        }
+        return s0 + s1 + s2 + s3;
+      },
+    }[${JSON.stringify(kind)}];
+    parentPort.on('message', (n) => parentPort.postMessage(work(n)));`;
   const run = async (threads: number): Promise<number> => {
     const workers = Array.from({ length: threads }, () => new Worker(code, { eval: true }));
     const t0 = performance.now();
@@ -164,7 +178,7 @@ async function controlSpeedup(tasks = 4): Promise<{ oneS: number; twoS: number }
           next++;
           await new Promise((resolve) => {
             w.once('message', resolve);
-            w.postMessage(2e8);
+            w.postMessage(kind === 'loop' ? 2e8 : 5e8);
           });
         }
       }),
@@ -261,9 +275,10 @@ if (!existsSync(bin) || !existsSync(fileURLToPath(new URL('../dist/cli/batch-wor
     // 1 then 2 and 2 then 1, so that a machine slowing down or speeding up over the minutes of the
     // run favours neither. On a shared machine the rounds differ; the control beside each shows why.
     const repeats = arg('--batch-repeats', 5);
-    const rounds: { one: ReturnType<typeof timeCli>; two: ReturnType<typeof timeCli>; control: number }[] = [];
+    const rounds: { one: ReturnType<typeof timeCli>; two: ReturnType<typeof timeCli>; control: number; controlArray: number }[] = [];
     for (let i = 0; i < repeats; i++) {
-      const c = await controlSpeedup(2);
+      const c = await controlSpeedup('loop', 2);
+      const ca = await controlSpeedup('array', 2);
       const runJobs = (jobs: number): ReturnType<typeof timeCli> => timeCli(['batch', batchDir, '--jobs', String(jobs), '--json']);
       let one: ReturnType<typeof timeCli>;
       let two: ReturnType<typeof timeCli>;
@@ -274,13 +289,13 @@ if (!existsSync(bin) || !existsSync(fileURLToPath(new URL('../dist/cli/batch-wor
         two = runJobs(2);
         one = runJobs(1);
       }
-      rounds.push({ one, two, control: c.oneS / c.twoS });
+      rounds.push({ one, two, control: c.oneS / c.twoS, controlArray: ca.oneS / ca.twoS });
     }
     say(`Batch: ${batchFiles} files × ${batchMinutes} min at ${batchRate / 1000} kHz (decode + timing + shape per file), built CLI, ${repeats} rounds`);
     const cpu = (r: ReturnType<typeof timeCli>): string => (r.cpuS === null ? '–' : `${r.cpuS.toFixed(2)} s (${Math.round((100 * r.cpuS) / r.wallS)} %)`);
     const rss = (r: ReturnType<typeof timeCli>): string => (r.maxRssMB === null ? '–' : `${r.maxRssMB.toFixed(0)} MB`);
     printTable(
-      ['round', '1 worker', '2 workers', 'speed-up', 'CPU 1 worker (use)', 'CPU 2 workers (use)', 'peak RSS 1 / 2', 'control'],
+      ['round', '1 worker', '2 workers', 'speed-up', 'CPU 1 worker (use)', 'CPU 2 workers (use)', 'peak RSS 1 / 2', 'control loop / array'],
       rounds.map((r, i) => [
         String(i + 1),
         `${r.one.wallS.toFixed(2)} s`,
@@ -289,7 +304,7 @@ if (!existsSync(bin) || !existsSync(fileURLToPath(new URL('../dist/cli/batch-wor
         cpu(r.one),
         cpu(r.two),
         `${rss(r.one)} / ${rss(r.two)}`,
-        `${r.control.toFixed(2)}×`,
+        `${r.control.toFixed(2)}× / ${r.controlArray.toFixed(2)}×`,
       ]),
     );
     const one = rounds.reduce((a, r) => (r.one.wallS < a.wallS ? r.one : a), rounds[0]!.one);
@@ -297,12 +312,14 @@ if (!existsSync(bin) || !existsSync(fileURLToPath(new URL('../dist/cli/batch-wor
     const speedups = rounds.map((r) => r.one.wallS / r.two.wallS);
     say(
       `fastest 1-worker run ${one.wallS.toFixed(2)} s, fastest 2-worker run ${two.wallS.toFixed(2)} s: ${(one.wallS / two.wallS).toFixed(2)}×; ` +
-        `median of the rounds ${median(speedups).toFixed(2)}×, ${speedups.filter((x) => x >= 1.7).length} of ${rounds.length} rounds at 1.7× or more`,
+        `median of the rounds ${median(speedups).toFixed(2)}×, ${speedups.filter((x) => x >= 1.7).length} of ${rounds.length} rounds at 1.7× or more; ` +
+        `controls' medians ${median(rounds.map((r) => r.control)).toFixed(2)}× (loop) and ${median(rounds.map((r) => r.controlArray)).toFixed(2)}× (array)`,
     );
     if (one.status !== 0 || two.status !== 0) say(`(batch exit codes ${one.status} and ${two.status}: ${(one.stderr + two.stderr).trim().split('\n').slice(-2).join(' / ')})`);
     say('');
   }
-  say('(control: a plain CPU loop on 1 and on 2 threads just before the round — what the machine could give then;');
+  say('(controls: fixed work on 1 and on 2 threads just before the round, what the machine could give then: a loop of');
+  say(' square roots, and multiply-adds over a 1 MiB array, which keeps the core and its caches busy as real work does;');
   say(' CPU time covers all threads: a use above 100 % with one worker is the engine compiling and collecting');
   say(' garbage on background threads, which two workers must share with each other)');
 }

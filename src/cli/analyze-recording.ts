@@ -124,6 +124,16 @@ export async function decodeAudioSource(audio: AudioSource, options: StreamDecod
   }
 }
 
+/**
+ * The last recording's receiver and reports, held until the next recording has made its own. The
+ * engine's optimised code refers weakly to the object shapes (hidden classes) it was compiled for;
+ * when the last objects of a shape are collected between two files, the code is thrown away, and
+ * the next file makes new shapes and compiles it all again. Over three 10-minute files that was 23
+ * discarded compilations; holding the previous file's objects until the next file's exist keeps one
+ * line of shapes alive (the cost: one finished receiver's memory between files).
+ */
+const heldUntilNext: { decoder: StreamDecoder | null; analysis: unknown } = { decoder: null, analysis: null };
+
 async function decodeChunks(audio: AudioSource, options: StreamDecodeOptions): Promise<StreamDecode> {
   const { sampleRate, channelCount } = audio;
   if (options.channel !== undefined && (!Number.isInteger(options.channel) || options.channel < 0 || options.channel >= channelCount)) {
@@ -176,7 +186,9 @@ async function decodeChunks(audio: AudioSource, options: StreamDecodeOptions): P
   }
   if (channel < 0) choose();
   if (fed === 0) throw new InputError(`${audio.name}: no audio samples`);
-  return { result: decoder.finish(), channel, channelNote, excerpt: excerpt.subarray(0, kept) };
+  const result = decoder.finish();
+  heldUntilNext.decoder = decoder;
+  return { result, channel, channelNote, excerpt: excerpt.subarray(0, kept) };
 }
 
 /**
@@ -242,9 +254,13 @@ async function analyzeInto(row: BatchRow, path: string, options: AnalyzeOptions)
   row.snrDb = round(result.snrDb, 1);
   row.warnings.push(...result.warnings);
 
+  let timing: unknown = null;
+  let shape: unknown = null;
   if (result.marks.length >= 2) {
     try {
-      row.jitterPct = round(measureTiming(result).jitterPct, 1);
+      const report = measureTiming(result);
+      timing = report;
+      row.jitterPct = round(report.jitterPct, 1);
     } catch (err) {
       row.warnings.push(`timing: ${errorLine(err)}`);
     }
@@ -258,6 +274,7 @@ async function analyzeInto(row: BatchRow, path: string, options: AnalyzeOptions)
         timing: { marks: result.marks, unitMs: result.unitMs ?? null },
         findShortestRise: false,
       });
+      shape = report;
       // Null where the shape report could not stand behind the figure (too noisy).
       row.riseMs = report.measurable.edges ? round(report.riseMs.median, 2) : null;
       row.occupiedBandwidthHz = report.measurable.spectrum ? round(report.occupiedBandwidthHz, 0) : null;
@@ -270,6 +287,7 @@ async function analyzeInto(row: BatchRow, path: string, options: AnalyzeOptions)
       row.warnings.push(`shape: ${errorLine(err)}`);
     }
   }
+  heldUntilNext.analysis = { result, excerpt, timing, shape };
 }
 
 /** A recording's keying shape as measured from a stretch of it. */
