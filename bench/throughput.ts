@@ -4,7 +4,7 @@
  *
  *   npm run bench:throughput                      one hour at 48 kHz and at 8 kHz (the issue's case)
  *   npx tsx bench/throughput.ts --minutes 10      shorter, for a quick look
- *   options: --minutes M  --repeats R  --batch 6x10,6x60,12x60,6x60@48 (folders of N files × M minutes, 8 kHz
+ *   options: --minutes M  --repeats R  --batch 6x10,6x60,12x60,24x60,6x60@48 (folders of N files × M minutes, 8 kHz
  *            unless @48 says 48 kHz)  --batch-repeats R (default 5)  --dir DIR  --keep
  *
  * Test audio (deterministic, seeded): traffic of 20–25 WPM between invented stations, 5 ms raised-cosine
@@ -14,8 +14,8 @@
  * Each measurement runs in a child process so its peak resident memory (process.resourceUsage().maxRSS)
  * is its own: "read" = read the file through the streaming path and convert to float (the floor),
  * "decode" = the same plus the streaming receiver. Batch speed-up runs the built CLI (dist/) with
- * --jobs 1 and --jobs 2 over the same files, for a folder of short files and three of long ones (one
- * of them at 48 kHz, as a sound card records): each worker thread compiles the code for itself (the
+ * --jobs 1 and --jobs 2 over the same files, for a folder of short files and four of long ones (6, 12
+ * and 24 one-hour files, and six at 48 kHz, as a sound card records): each worker thread compiles the code for itself (the
  * engine's optimising compiler) before it runs at full speed, a cost per worker that a short batch
  * does not hide. Rounds alternate which of the two runs first; the summary gives the median round.
  */
@@ -194,7 +194,7 @@ async function controlSpeedup(kind: 'loop' | 'array', tasks = 4): Promise<{ oneS
 
 // ---------------------------------------------------------------- main
 const minutes = arg('--minutes', 60);
-const batchShapes = (process.argv.includes('--batch') ? process.argv[process.argv.indexOf('--batch') + 1]! : '6x10,6x60,12x60,6x60@48').split(',').map((spec) => {
+const batchShapes = (process.argv.includes('--batch') ? process.argv[process.argv.indexOf('--batch') + 1]! : '6x10,6x60,12x60,24x60,6x60@48').split(',').map((spec) => {
   const m = /^(\d+)x(\d+(?:\.\d+)?)(?:@(8|16|44\.1|48))?$/.exec(spec.trim());
   if (!m) throw new Error(`--batch: expected N×M[@kHz] like 6x10 or 6x10@48 (got ${spec})`);
   return { files: Number(m[1]), minutes: Number(m[2]), sampleRate: Math.round(Number(m[3] ?? 8) * 1000) };

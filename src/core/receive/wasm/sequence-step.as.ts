@@ -18,11 +18,17 @@
 @external('env', 'log')
 declare function hostLog(x: f64): f64;
 
+/** Score of a state no path reaches. */
 const NEG: f64 = -1e300;
+/** Paths more than this far (natural log) below the best one are dropped (beam search). */
 const BEAM: f64 = 40;
+/** Slot within each 65,536 at which the scores are shifted (see the end of step). */
 const RESCALE_PHASE: i32 = 16;
+/** Log prior cost of a mark 6 dB below the tracked amplitude. */
 const WEAKER_PRIOR: f64 = -4;
+/** Log prior cost of a mark 12 dB below it (fast fading: the level tracker lags a fade by a few marks). */
 const WEAKER_PRIOR_12DB: f64 = -8;
+/** Reach of the host's ln I0 table (steps of 1/64). */
 const FAST_MAX: f64 = 64;
 
 // Header words (32-bit), as the host writes them.
@@ -233,7 +239,11 @@ function lnI0Asymptotic(a: f64): f64 {
   return lnI0Asymptotic(a);
 }
 
-/** markScore (viterbi.ts): the best of a tone at the tracked level, 6 dB and 12 dB weaker. */
+/**
+ * Mark score: the log-likelihood ratio ln I0(x) − q of a tone of the tracked amplitude, or of a
+ * tone 6 or 12 dB weaker (with prior costs), whichever fits best, so that marks stay visible while
+ * the amplitude tracker catches up with a fade. x = 2·|Σ y| over the segment, q = Σ A²/σ².
+ */
 function markScore(x: f64, q: f64): f64 {
   const full = lnI0Fast(x) - q;
   const half = lnI0Fast(0.5 * x) - 0.25 * q + WEAKER_PRIOR;
@@ -241,7 +251,7 @@ function markScore(x: f64, q: f64): f64 {
   return full > half ? (full > quarter ? full : quarter) : half > quarter ? half : quarter;
 }
 
-/** Score of a tone over slots (a, b] with one phase (viterbi.ts: spanScore). */
+/** Score of a tone over slots (a, b] with one phase: fade-tolerant (markScore) or at the tracked level. */
 function spanScore(a: i32, b: i32, weak: bool): f64 {
   const si = a & M;
   const ei = b & M;
@@ -252,7 +262,13 @@ function spanScore(a: i32, b: i32, weak: bool): f64 {
   return weak ? markScore(x, q) : lnI0Fast(x) - q;
 }
 
-/** Log-likelihood ratio of a mark over slots (a, b] in blocks (viterbi.ts: markLlr). */
+/**
+ * Log-likelihood ratio (mark against noise) of slots (a, b], both within the history. Phase is held
+ * over blocks of about two units from the start: (a, a + block], (a + block, a + 2·block], …, the
+ * last one shorter: dots whole, dashes in two coherent pieces summed as energy, so a tone a few
+ * hertz off (drift the loop has not caught yet) costs little. Only marks of a plausible length (at
+ * least about a dot) may be weaker than the tracked level: a click is short.
+ */
 export function markLlr(a: i32, b: i32): f64 {
   const block = word(H_BLOCK_SLOTS);
   const weak = b - a >= word(H_MIN_WEAK_SLOTS);
@@ -261,7 +277,13 @@ export function markLlr(a: i32, b: i32): f64 {
   return sum;
 }
 
-/** llr[d] for every mark ending at slot t (viterbi.ts: markScores, which explains the method). */
+/**
+ * Fills llr[d] = markLlr(t − d, t) for d = 1…maxMark in O(block + maxMark) rather than
+ * O(maxMark²/block): a mark longer than a block is its first, whole block plus the mark over the
+ * rest, which ends at t too and was scored just before (llrWeak[d − block]); each whole block's
+ * score is kept by its last slot (blockAt), as it does not change once the slot is past. Marks of
+ * at most a block are scored directly: their ln I0 arguments x, x/2, x/4 first, then the values.
+ */
 function markScores(t: i32, maxMark: i32, block: i32, minWeak: i32): void {
   const ti = t & M;
   const yr = f64At(oYRe, ti);
@@ -289,6 +311,7 @@ function markScores(t: i32, maxMark: i32, block: i32, minWeak: i32): void {
     setF64(oLlrWeak, d, fw);
     setF64(oLlr, d, d >= minWeak ? fw : full);
   }
+  // The whole block ending now, for the marks that will start with it (not over the first two blocks).
   if (t >= 2 * block) {
     setF64(oBlockAt, ti, f64At(oLlrWeak, block));
     setI32(oBlockSizeAt, ti, block);
@@ -303,7 +326,7 @@ function markScores(t: i32, maxMark: i32, block: i32, minWeak: i32): void {
   }
 }
 
-/** A letter or word gap ending at slot t: closes the best character before it (viterbi.ts: closeGap). */
+/** A letter or word gap ending at slot t (its row at `base`): closes the best character that ended where the gap starts; 1 when the state got a score. */
 function closeGap(logP: usize, min: i32, max: i32, state: i32, prior: f64, t: i32, base: i32): i32 {
   const hi = imin(max, t);
   let best = NEG;
@@ -332,7 +355,7 @@ function shiftLive(a: usize, count: i32, top: f64): void {
   }
 }
 
-/** Shifts every live score by the best one at the current slot (viterbi.ts: rescale). */
+/** Shifts every live score by the best one at the current slot (row `base`): float64 keeps ample precision in between. */
 function rescale(base: i32): void {
   let top = NEG;
   for (let s = 0; s < S; s++) top = Math.max(top, f64At(oScore, base + s));
@@ -344,8 +367,10 @@ function rescale(base: i32): void {
 }
 
 /**
- * Advances to slot t (the previous slot + 1) with the slot's observation [yRe, yIm, q] at the
- * input offset (viterbi.ts: stepFrom, which explains each part).
+ * Advances to slot t (the previous slot + 1) with the slot's observation [yRe, yIm, q] at the input
+ * offset: prefix sums of the observation, every mark's score, then the best way into each state at
+ * this slot over every duration its table allows (semi-Markov Viterbi), the beam, and what the
+ * next slots need (where long runs may start, the best character ending here).
  */
 export function step(t: i32): void {
   const yRe = f64At(oInput, 0);
@@ -375,7 +400,8 @@ export function step(t: i32): void {
   markScores(t, maxMark, word(H_BLOCK_SLOTS), word(H_MIN_WEAK_SLOTS));
   let nWritten = 0;
   const rootAlive = imax(i32At(oLastAlive, stR), i32At(oLastAlive, stS));
-  // Marks: from the gap before them.
+  // Marks: from the gap before them (element gap of the parent, or a letter/word gap at the root).
+  // A node whose parent state has been out of the beam for longer than the longest mark is skipped.
   for (let node = 1; node < n; node++) {
     const isDash = <i32>load<i8>(oSymbol + <usize>node) == 1;
     const tMin = isDash ? dashMin : dotMin;
@@ -421,7 +447,8 @@ export function step(t: i32): void {
       setI16(oWritten, nWritten++, node);
     }
   }
-  // Long nodes: from the best element gap that may lead to them.
+  // Long nodes (unknown runs past the tree's depth): from the best element gap that may lead to them,
+  // kept per slot below. Stored at every slot, path or none (best stays NEG).
   for (let kind = 0; kind < 2; kind++) {
     const node = kind == 0 ? longDot : longDash;
     const tMin = kind == 0 ? dotMin : dashMin;
@@ -474,7 +501,7 @@ export function step(t: i32): void {
       }
     }
   }
-  // Letter and word gaps.
+  // Letter and word gaps: close the best character that ended where the gap starts.
   if (closeGap(oLogPLgap, lgapMin, lgapMax, stR, letterGapPrior, t, base) != 0) setI16(oWritten, nWritten++, stR);
   const wordGapWritten = closeGap(oLogPWgap, wgapMin, wgapMax, stS, wordGapPrior, t, base);
   // Idle: a word gap may go on for any length.
@@ -485,7 +512,9 @@ export function step(t: i32): void {
     setI16(oBpPrev, base + stS, stS);
   }
   if (wordGapWritten != 0 || f64At(oScore, base + stS) > NEG) setI16(oWritten, nWritten++, stS);
-  // Beam.
+  // Beam: drop what is far below the best path; remember what is still alive. Only the states
+  // written at this slot can hold a score (the row was cleared above). On the way, where a long dot /
+  // long dash could start after this slot: the best live element gap among the nodes leading to them.
   let top = NEG;
   for (let w = 0; w < nWritten; w++) {
     const v = f64At(oScore, base + i16At(oWritten, w));
@@ -519,7 +548,8 @@ export function step(t: i32): void {
   setI16(oLongSrcState0, ti, dotState);
   setF64(oLongSrcScore1, ti, dashSrc);
   setI16(oLongSrcState1, ti, dashState);
-  // Best character ending at this slot.
+  // Best character ending at this slot, for the gaps that will close it (marks were written first, in
+  // node order: the same node wins a tie as in a scan of all nodes).
   let bc = NEG;
   let bcNode = -1;
   for (let w = 0; w < nWritten; w++) {
@@ -533,5 +563,6 @@ export function step(t: i32): void {
   }
   setF64(oBestChar, ti, bc);
   setI16(oBestCharNode, ti, bcNode);
+  // Keep numbers small: shift every live score by the best one now and then.
   if ((t & 0xffff) == RESCALE_PHASE) rescale(base);
 }
