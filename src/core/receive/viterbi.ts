@@ -61,6 +61,14 @@ function durationTable(mean: number, spread: number, cap: number, into: Duration
   const min = Math.max(1, Math.floor(mean * Math.exp(-2.5 * spread)));
   const max = Math.max(min, Math.min(cap, Math.ceil(mean * Math.exp(2.5 * spread))));
   const logP = into.logP;
+  if (!(max <= cap)) {
+    // A mean past the ring's reach (or not a number): no duration of this class can be scored. The
+    // step indexes its arrays by these bounds, so they never leave 1…cap.
+    logP.fill(NEG);
+    into.min = 1;
+    into.max = 0;
+    return;
+  }
   logP.fill(NEG, 0, min);
   const k = 1 / (2 * spread * spread);
   const lnMean = Math.log(mean);
