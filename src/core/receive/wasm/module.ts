@@ -8,6 +8,7 @@ let compiled: WebAssembly.Module | null = null;
  * bytes gets the code (and its optimised tier, once made) that the first one made.
  */
 export function sequenceStepModule(): WebAssembly.Module {
+  if (typeof WebAssembly === 'undefined') throw new Error('the decoder needs WebAssembly, which this Node.js has turned off (node --jitless?)');
   compiled ??= new WebAssembly.Module(Uint8Array.from(atob(SEQUENCE_STEP_WASM_BASE64), (c) => c.charCodeAt(0)));
   return compiled;
 }
