@@ -212,6 +212,7 @@ export class SequenceDecoder {
     if (historySlots < 256 || historySlots > 65536 || (historySlots & (historySlots - 1)) !== 0) {
       throw new RangeError(`historySlots must be a power of two from 256 to 65536 (got ${historySlots})`);
     }
+    const module = sequenceStepModule();
     this.historySlots = historySlots;
     const n = (this.n = trie.size);
     const S = (this.nStates = 2 * n + 2);
@@ -298,7 +299,7 @@ export class SequenceDecoder {
     f64(at.priors, 3).set([GAP_PRIOR.elementGap, GAP_PRIOR.letterGap, GAP_PRIOR.wordGap]);
     const table = (offset: number): DurationTable => ({ min: 1, max: 0, logP: f64(offset, cap + 1) });
     this.tables = { dot: table(at.logPDot), dash: table(at.logPDash), egap: table(at.logPEgap), lgap: table(at.logPLgap), wgap: table(at.logPWgap) };
-    const instance = new WebAssembly.Instance(sequenceStepModule(), { env: { memory, log: Math.log } });
+    const instance = new WebAssembly.Instance(module, { env: { memory, log: Math.log } });
     this.core = instance.exports as unknown as StepExports;
     this.core.init(at.header);
     this.setModel(model);
