@@ -390,7 +390,7 @@ function fitWordSpeeds(
   words: number,
   typical: ClassLengths,
 ): { factor: Float64Array; shape: ClassLengths } {
-  // (Written out rather than spread, as in the receiver's copyModel: spreading an object with
+  // (Written out rather than spread, as the receiver's withLevels is: spreading an object with
   // fractional fields makes its shape's fields general ones.)
   let shape: ClassLengths = { dit: typical.dit, dah: typical.dah, element: typical.element };
   const factor = new Float64Array(words).fill(1);

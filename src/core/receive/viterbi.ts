@@ -1,7 +1,6 @@
 import type { CodeTrie } from './trie.js';
 import { lnI0FastTable } from './lni0.js';
 import { sequenceStepModule } from './wasm/module.js';
-import { FRACTIONAL_ZERO } from './fractional.js';
 
 /** Mean segment lengths [slots] the decoder expects; updated as the speed is tracked. */
 export interface DurationModel {
@@ -84,52 +83,6 @@ function durationTable(mean: number, spread: number, cap: number, into: Duration
   into.max = max;
 }
 
-type Spread = NonNullable<DurationModel['spread']>;
-
-/** A model or spread object of its own, to be filled by copyModelInto (fields fractional from the start). */
-function blankSpread(): Spread {
-  return { dit: FRACTIONAL_ZERO, dah: FRACTIONAL_ZERO, elementGap: FRACTIONAL_ZERO, letterGap: FRACTIONAL_ZERO, wordGap: FRACTIONAL_ZERO };
-}
-function blankModel(): DurationModel {
-  return { dit: FRACTIONAL_ZERO, dah: FRACTIONAL_ZERO, elementGap: FRACTIONAL_ZERO, letterGap: FRACTIONAL_ZERO, wordGap: FRACTIONAL_ZERO, spread: undefined };
-}
-
-/**
- * Copies a duration model into `to`, its spreads (if any) into `toSpread`, field by field rather
- * than spread ({ ...m }): the engine spreads an object with fractional fields by first making those
- * fields of its shape general ones, which throws away code compiled for the shape.
- */
-function copyModelInto(from: DurationModel, to: DurationModel, toSpread: Spread): void {
-  to.dit = from.dit;
-  to.dah = from.dah;
-  to.elementGap = from.elementGap;
-  to.letterGap = from.letterGap;
-  to.wordGap = from.wordGap;
-  const s = from.spread;
-  if (s) {
-    toSpread.dit = s.dit;
-    toSpread.dah = s.dah;
-    toSpread.elementGap = s.elementGap;
-    toSpread.letterGap = s.letterGap;
-    toSpread.wordGap = s.wordGap;
-    to.spread = toSpread;
-  } else {
-    to.spread = undefined;
-  }
-}
-
-/**
- * Sequence decoder: a semi-Markov (explicit-duration) Viterbi search over marks and gaps that
- * walks the code tree, so only runs of elements that form characters are cheap, after the
- * hidden-Markov decoders of the literature (D. L. Mills 1977; E. L. Bell 1977).
- *
- * Each slot brings a soft observation: the slot's complex baseband value weighted by A/σ² and the
- * energy term A²/σ² (A: carrier amplitude, σ²: noise power). A mark over slots (a, b] scores
- * ln I0(2·|Σ y|) − Σ q, the log-likelihood ratio of a tone of unknown phase against noise; gaps
- * score 0 (the noise hypothesis). Durations score by log-normal priors around the tracked means.
- * State is bounded: a ring of `historySlots` slots of scores and back-pointers.
- * @example const d = new SequenceDecoder(buildCodeTrie(), { dit: 4, dah: 12, elementGap: 4, letterGap: 12, wordGap: 28 }); d.step(yRe, yIm, q); d.traceback(0) // segments
- */
 /** The step's exports (wasm/sequence-step.as.ts). */
 interface StepExports {
   init(header: number): void;
@@ -201,9 +154,6 @@ export class SequenceDecoder {
    * engine would then make them general ones and throw away the code compiled for models.)
    */
   private readonly tables: { dot: DurationTable; dash: DurationTable; egap: DurationTable; lgap: DurationTable; wgap: DurationTable };
-  /** The model in use, the decoder's own objects, refilled in place by setModel. */
-  private readonly model = blankModel();
-  private readonly modelSpread = blankSpread();
   /** Index of the last slot processed (slot 0 is the start, before any data). */
   t = 0;
 
@@ -305,19 +255,8 @@ export class SequenceDecoder {
     this.setModel(model);
   }
 
-  /** The duration model in use [slots]. */
-  get durations(): DurationModel {
-    const out = blankModel();
-    copyModelInto(this.model, out, blankSpread());
-    return out;
-  }
-
-  /**
-   * Replaces the expected segment lengths [slots]. Copied into the decoder's own model object, in
-   * place: the receiver sets a model at every commit, and a new object each time was 7 MB an hour.
-   */
+  /** Replaces the expected segment lengths [slots]: the tables are refreshed in place (the receiver sets a model at every commit). */
   setModel(model: DurationModel): void {
-    copyModelInto(model, this.model, this.modelSpread);
     const cap = Math.floor(this.historySlots / 4);
     const spread = model.spread ?? SPREAD;
     const t = this.tables;
