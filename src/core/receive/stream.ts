@@ -371,6 +371,10 @@ export class StreamDecoder {
       elementGap: clamp(est.elementGapMs / slotMs, 0.8 * u, 1.25 * u),
       letterGap,
       wordGap: farnsworth ? Math.max((7 / 3) * letterGap, est.wordGapMs / slotMs) : 7 * u,
+      // The decoder's starting spreads (its defaults), present from the start: a model given them
+      // only at its first decided segment took a second shape, and code compiled for one shape was
+      // thrown away when the next file's model arrived with the other.
+      spread: { dit: 0.3, dah: 0.3, elementGap: 0.35, letterGap: 0.35, wordGap: 0.35 },
     };
     constrainModel(model);
     return { framesPerSlot, slotMs, slicer, decoder: new SequenceDecoder(TRIE, model, 2048), model, unitSlots };

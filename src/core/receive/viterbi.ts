@@ -292,7 +292,7 @@ export class SequenceDecoder {
     y[0] = yRe;
     y[1] = yIm;
     y[2] = q;
-    this.core.step(++this.t);
+    this.core.step.call(undefined, ++this.t);
   }
 
   /**
@@ -304,7 +304,11 @@ export class SequenceDecoder {
     input[0] = y[0]!;
     input[1] = y[1]!;
     input[2] = y[2]!;
-    this.core.step(++this.t);
+    // Called through Function.prototype.call: each decoder has a WebAssembly instance of its own, and
+    // a direct call would be compiled for the first instance's function, then thrown away (a "wrong
+    // call target") when the next recording's decoder brings its own; a call made through .call is
+    // compiled for any function.
+    this.core.step.call(undefined, ++this.t);
   }
 
   /** Score of the best path so far (log-likelihood ratio against noise plus log priors). */
@@ -323,7 +327,7 @@ export class SequenceDecoder {
    * (at least about a dot) may be weaker than the tracked level: a click is short.
    */
   markLlr(a: number, b: number): number {
-    return this.core.markLlr(a, b);
+    return this.core.markLlr.call(undefined, a, b);
   }
 
   /**
