@@ -18,9 +18,12 @@
  * and 24 one-hour files, and six at 48 kHz, as a sound card records): each worker thread compiles the code for itself (the
  * engine's optimising compiler) before it runs at full speed, a cost per worker that a short batch
  * does not hide. Rounds alternate which of the two runs first; the summary gives the median round.
+ * Each folder is read once before its rounds (into the operating system's cache), and one-worker runs
+ * that used under 90 % of a core — they waited, on a machine whose cache cannot hold the folder, for
+ * the disk — are counted under the table.
  */
 import { spawnSync } from 'node:child_process';
-import { closeSync, existsSync, mkdirSync, openSync, readFileSync, renameSync, rmSync, statSync, writeFileSync, writeSync } from 'node:fs';
+import { closeSync, existsSync, mkdirSync, openSync, readFileSync, readSync, readdirSync, renameSync, rmSync, statSync, writeFileSync, writeSync } from 'node:fs';
 import { availableParallelism, loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -133,6 +136,26 @@ function runChild(mode: 'read' | 'decode', path: string): ChildResult {
 }
 
 /** Runs the built CLI; with /usr/bin/time (GNU time) also its CPU seconds and peak RSS. */
+/**
+ * Reads every file of a folder once, block by block (1 MiB, nothing kept), so that the operating
+ * system's cache holds them before the first round: otherwise whichever run comes first reads from the
+ * disk and waits. Returns megabytes read and seconds taken.
+ */
+function readThrough(folder: string): { mb: number; s: number } {
+  const t0 = performance.now();
+  const block = new Uint8Array(1 << 20);
+  let bytes = 0;
+  for (const name of readdirSync(folder)) {
+    const fd = openSync(join(folder, name), 'r');
+    try {
+      for (let n = readSync(fd, block); n > 0; n = readSync(fd, block)) bytes += n;
+    } finally {
+      closeSync(fd);
+    }
+  }
+  return { mb: bytes / 1e6, s: (performance.now() - t0) / 1000 };
+}
+
 function timeCli(args: string[]): { wallS: number; cpuS: number | null; maxRssMB: number | null; status: number | null; stderr: string } {
   const bin = fileURLToPath(new URL('../dist/cli/bin.js', import.meta.url));
   const gnuTime = existsSync('/usr/bin/time');
@@ -275,6 +298,7 @@ if (!existsSync(bin) || !existsSync(fileURLToPath(new URL('../dist/cli/batch-wor
     // 1 then 2 and 2 then 1, so that a machine slowing down or speeding up over the minutes of the
     // run favours neither. On a shared machine the rounds differ; the control beside each shows why.
     const repeats = arg('--batch-repeats', 5);
+    const warm = readThrough(batchDir);
     const rounds: { one: ReturnType<typeof timeCli>; two: ReturnType<typeof timeCli>; control: number; controlArray: number }[] = [];
     for (let i = 0; i < repeats; i++) {
       const c = await controlSpeedup('loop', 2);
@@ -315,6 +339,11 @@ if (!existsSync(bin) || !existsSync(fileURLToPath(new URL('../dist/cli/batch-wor
         `median of the rounds ${median(speedups).toFixed(2)}×, ${speedups.filter((x) => x >= 1.7).length} of ${rounds.length} rounds at 1.7× or more; ` +
         `controls' medians ${median(rounds.map((r) => r.control)).toFixed(2)}× (loop) and ${median(rounds.map((r) => r.controlArray)).toFixed(2)}× (array)`,
     );
+    say(`(the folder's ${warm.mb.toFixed(0)} MB were read once before the rounds, in ${warm.s.toFixed(1)} s, so that the first run need not wait for the disk)`);
+    // A run that used much less than a core waited for something (the disk, when the cache could not
+    // hold the folder): its speed-up says more about the disk than about keyform.
+    const waited = rounds.filter((r) => r.one.cpuS !== null && r.one.cpuS / r.one.wallS < 0.9).length;
+    if (waited > 0) say(`(${waited} of ${rounds.length} one-worker runs used under 90 % of a core: they waited, most likely for the disk)`);
     if (one.status !== 0 || two.status !== 0) say(`(batch exit codes ${one.status} and ${two.status}: ${(one.stderr + two.stderr).trim().split('\n').slice(-2).join(' / ')})`);
     say('');
   }
