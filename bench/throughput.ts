@@ -135,7 +135,6 @@ function runChild(mode: 'read' | 'decode', path: string): ChildResult {
   return JSON.parse(r.stdout) as ChildResult;
 }
 
-/** Runs the built CLI; with /usr/bin/time (GNU time) also its CPU seconds and peak RSS. */
 /**
  * Reads every file of a folder once, block by block (1 MiB, nothing kept), so that the operating
  * system's cache holds them before the first round: otherwise whichever run comes first reads from the
@@ -156,6 +155,7 @@ function readThrough(folder: string): { mb: number; s: number } {
   return { mb: bytes / 1e6, s: (performance.now() - t0) / 1000 };
 }
 
+/** Runs the built CLI; with /usr/bin/time (GNU time) also its CPU seconds and peak RSS. */
 function timeCli(args: string[]): { wallS: number; cpuS: number | null; maxRssMB: number | null; status: number | null; stderr: string } {
   const bin = fileURLToPath(new URL('../dist/cli/bin.js', import.meta.url));
   const gnuTime = existsSync('/usr/bin/time');

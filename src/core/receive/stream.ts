@@ -371,9 +371,10 @@ export class StreamDecoder {
       elementGap: clamp(est.elementGapMs / slotMs, 0.8 * u, 1.25 * u),
       letterGap,
       wordGap: farnsworth ? Math.max((7 / 3) * letterGap, est.wordGapMs / slotMs) : 7 * u,
-      // The decoder's starting spreads (its defaults), present from the start: a model given them
-      // only at its first decided segment took a second shape, and code compiled for one shape was
-      // thrown away when the next file's model arrived with the other.
+      // The decoder's default spreads (SPREAD in viterbi.ts), present from the start: a model given
+      // them only at its first decided segment took a second shape, and code compiled for one shape
+      // was thrown away when the next file's model arrived with the other. Written out here rather
+      // than copied from there: the copy made the engine recompile account() in the second file.
       spread: { dit: 0.3, dah: 0.3, elementGap: 0.35, letterGap: 0.35, wordGap: 0.35 },
     };
     constrainModel(model);
@@ -714,7 +715,7 @@ export class StreamDecoder {
     const m = this.model!;
     // Timing spread (jitter) of each class, tracked as the mean square of ln(d / mean): machine
     // keying earns tight priors, hand keying wide ones.
-    const sp = (m.spread ??= { dit: 0.3, dah: 0.3, elementGap: 0.35, letterGap: 0.35, wordGap: 0.35 });
+    const sp = m.spread!; // makeChain gives every model its spreads
     switch (s.kind) {
       case 'mark':
         if (TRIE.symbol[s.node] === 1) {

@@ -136,6 +136,12 @@ export class SequenceDecoder {
   private readonly nStates: number;
   private readonly stR: number;
   private readonly stS: number;
+  /**
+   * The step's exports, called through Function.prototype.call: each decoder has a WebAssembly
+   * instance of its own, and a direct call would be compiled for the first instance's function, then
+   * thrown away (a "wrong call target") when the next recording's decoder brings its own; a call made
+   * through .call is compiled for any function.
+   */
   private readonly core: StepExports;
   /** Header words: layout, then the tables' reach and block sizes (H_PARAMS on), which setModel writes. */
   private readonly header: Int32Array;
@@ -304,10 +310,6 @@ export class SequenceDecoder {
     input[0] = y[0]!;
     input[1] = y[1]!;
     input[2] = y[2]!;
-    // Called through Function.prototype.call: each decoder has a WebAssembly instance of its own, and
-    // a direct call would be compiled for the first instance's function, then thrown away (a "wrong
-    // call target") when the next recording's decoder brings its own; a call made through .call is
-    // compiled for any function.
     this.core.step.call(undefined, ++this.t);
   }
 
