@@ -5,48 +5,11 @@
  * bad file: the error goes in the row.
  */
 import { InputError } from '../core/errors.js';
+import { errorLine, errorRow, type BatchRow } from './batch-row.js';
 import { defaultShapeWindowS, measureShape, stretchNote, type ShapeOptions, type ShapeReport } from '../core/measure/shape.js';
 import { measureTiming } from '../core/measure/timing.js';
 import { pickChannel, StreamDecoder, type DecodeResult } from '../core/receive/index.js';
 import { concatChunks, keepableChunk, openAudio, readChannelWindow, type AudioSource, type OpenAudioOptions } from '../io/audio-source.js';
-
-/** One line of a batch report. Numbers are null where they could not be measured. */
-export interface BatchRow {
-  /** The path as given. */
-  file: string;
-  /** Length of the audio [s]. */
-  durationS: number | null;
-  /** Decoded text. */
-  text: string;
-  /** Character speed [wpm, PARIS]. */
-  wpm: number | null;
-  /** Carrier tone in the recording [Hz]. */
-  toneHz: number | null;
-  /** Key-down carrier power over noise in 2500 Hz [dB] (the receiver's estimate). */
-  snrDb: number | null;
-  /** Median 10–90 % rise time of the marks [ms] (shape analysis). */
-  riseMs: number | null;
-  /** Occupied (99 % power) bandwidth per ITU-R SM.328 [Hz] (shape analysis). */
-  occupiedBandwidthHz: number | null;
-  /** Timing jitter [% of a unit] (timing report). */
-  jitterPct: number | null;
-  /**
-   * `ok`, `no signal`, `mask fail` (the keyed spectrum exceeds the shape mask), `not judged` (decoded,
-   * but too noisy for the shape analysis to judge the mask: rise and bandwidth are null) or `error`.
-   */
-  verdict: BatchVerdict;
-  /** One-line reason when verdict is `error`. */
-  error: string | null;
-  /** Receiver, timing and shape warnings, one line each. */
-  warnings: string[];
-}
-
-export type BatchVerdict = 'ok' | 'no signal' | 'mask fail' | 'not judged' | 'error';
-
-/** Column order of the report files. */
-export const BATCH_COLUMNS: readonly (keyof BatchRow)[] = [
-  'file', 'durationS', 'text', 'wpm', 'toneHz', 'snrDb', 'riseMs', 'occupiedBandwidthHz', 'jitterPct', 'verdict', 'error', 'warnings',
-];
 
 export interface AnalyzeOptions extends Pick<OpenAudioOptions, 'raw' | 'rate' | 'channels' | 'streamAboveBytes' | 'stdin'> {
   /** Carrier tone [Hz]; found automatically when omitted. */
@@ -64,25 +27,10 @@ export interface AnalyzeOptions extends Pick<OpenAudioOptions, 'raw' | 'rate' | 
 /** Seconds of audio buffered to choose the channel of a multichannel recording. */
 const PICK_SECONDS = 10;
 
-/** A row with nothing measured: verdict `error` with the given one-line reason. */
-export function errorRow(file: string, error: string | null): BatchRow {
-  return {
-    file, durationS: null, text: '', wpm: null, toneHz: null, snrDb: null, riseMs: null, occupiedBandwidthHz: null,
-    jitterPct: null, verdict: 'error', error, warnings: [],
-  };
-}
-
 function round(x: number | null | undefined, digits: number): number | null {
   if (x === null || x === undefined || !Number.isFinite(x)) return null;
   const f = 10 ** digits;
   return Math.round(x * f) / f;
-}
-
-/** Makes the one-line message of a failure: InputErrors as they are, anything else marked internal. */
-export function errorLine(err: unknown): string {
-  const msg = err instanceof Error ? err.message : String(err);
-  const line = msg.split('\n')[0]!;
-  return err instanceof InputError ? line : `internal error: ${line}`;
 }
 
 export interface StreamDecodeOptions {

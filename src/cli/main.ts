@@ -1,15 +1,26 @@
 import { Command, CommanderError } from 'commander';
 import { InputError } from '../core/errors.js';
 import type { CliIo, CommandContext } from './io.js';
-import { registerEncode } from './commands/encode.js';
-import { registerDecode } from './commands/decode.js';
-import { registerTiming } from './commands/timing.js';
-import { registerShape } from './commands/shape.js';
-import { registerBatch } from './commands/batch.js';
 import { registerUi, runUi } from './commands/ui.js';
-import { registerDemo } from './commands/demo.js';
 
 export const VERSION = '0.1.0';
+
+type Register = (program: Command, ctx: CommandContext) => void;
+
+/**
+ * The commands, in the order help lists them, each loaded when needed: a command's module brings
+ * the signal code it runs (50–100 ms to load apiece), so `keyform batch …` loads batch alone rather
+ * than the decoder, timing and shape code too. Help and unknown names load them all.
+ */
+const COMMANDS: Record<string, () => Promise<Register>> = {
+  encode: async () => (await import('./commands/encode.js')).registerEncode,
+  decode: async () => (await import('./commands/decode.js')).registerDecode,
+  timing: async () => (await import('./commands/timing.js')).registerTiming,
+  shape: async () => (await import('./commands/shape.js')).registerShape,
+  batch: async () => (await import('./commands/batch.js')).registerBatch,
+  ui: async () => registerUi,
+  demo: async () => (await import('./commands/demo.js')).registerDemo,
+};
 
 /**
  * Runs the keyform command line. Never calls process.exit: returns the exit code
@@ -52,9 +63,8 @@ Try:
 Transmitting needs a licence and must follow your local regulations; isolate keying lines.`,
     );
 
-  for (const register of [registerEncode, registerDecode, registerTiming, registerShape, registerBatch, registerUi, registerDemo]) {
-    register(program, ctx);
-  }
+  const named = argv[0] !== undefined && Object.hasOwn(COMMANDS, argv[0]) ? [argv[0]] : Object.keys(COMMANDS);
+  for (const register of await Promise.all(named.map((name) => COMMANDS[name]!()))) register(program, ctx);
   for (const cmd of program.commands) cmd.exitOverride().configureOutput(program.configureOutput());
 
   try {

@@ -4,7 +4,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parse } from 'csv-parse/sync';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { BATCH_COLUMNS, type BatchRow } from '../../src/cli/analyze-recording.js';
+import { BATCH_COLUMNS, type BatchRow } from '../../src/cli/batch-row.js';
 import { collectInputs, formatRow, csvHeader } from '../../src/cli/commands/batch.js';
 import { main } from '../../src/cli/main.js';
 import type { CliIo } from '../../src/cli/io.js';

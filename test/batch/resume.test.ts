@@ -8,7 +8,7 @@ import { existsSync, mkdirSync, mkdtempSync, readFileSync, rmSync, writeFileSync
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
-import type { BatchRow } from '../../src/cli/analyze-recording.js';
+import type { BatchRow } from '../../src/cli/batch-row.js';
 import { csvHeader, formatRow, readEarlierReport } from '../../src/cli/commands/batch.js';
 import { synthesizeTone } from '../../src/core/signal/synth.js';
 import { planKeying } from '../../src/core/timing/plan.js';

@@ -8,7 +8,7 @@ import { parse } from 'csv-parse/sync';
 import { InputError } from '../../core/errors.js';
 import { cannotWrite } from '../../io/files.js';
 import { formatJson } from '../../io/json.js';
-import { BATCH_COLUMNS, errorLine, errorRow, type BatchRow } from '../analyze-recording.js';
+import { BATCH_COLUMNS, errorLine, errorRow, type BatchRow } from '../batch-row.js';
 import type { BatchTask } from '../batch-worker.js';
 import type { CommandContext } from '../io.js';
 import { numberIn } from '../options.js';
