@@ -16,7 +16,7 @@
 import { textForPattern } from '../morse/alphabet.js';
 import type { Interval } from '../timeline.js';
 import { checkRange, InputError } from '../errors.js';
-import { fitLine, mean, median, splitTwoClasses, standardDeviation, trimmedMean } from './timing-stats.js';
+import { fitLine, median, splitTwoClasses, standardDeviation, trimmedMean } from './timing-stats.js';
 
 /** Typical length of a class of intervals: the 20 % trimmed mean (see trimmedMean). */
 const typicalOf = (values: readonly number[]): number => trimmedMean(values, 0.2);
@@ -496,20 +496,35 @@ function edgeDof(chars: readonly number[][]): number {
   return dof;
 }
 
-/** One character's sum of squared edge residuals, its own offset removed (see jitterSsr). */
+/**
+ * One character's sum of squared edge residuals, its own offset removed (see jitterSsr). Two passes
+ * over the edges (their mean, then the squares about it), each working the residuals out afresh,
+ * with the same operations in the same order both times: no array of residuals per character, whose
+ * kind of numbers (small integers or fractions) varies from recording to recording and would make
+ * the engine compile this again for each kind.
+ */
 function characterSsr(marks: readonly Interval[], ch: readonly number[], isDah: readonly boolean[], shape: ClassLengths, scale: Float64Array): number {
-  const resid: number[] = [];
+  let sum = 0;
   let t = 0;
   for (let k = 0; k < ch.length; k++) {
     const i = ch[k]!;
     if (k > 0) t += shape.element * scale[i]!;
-    resid.push(marks[i]![0] - t);
+    sum += marks[i]![0] - t;
     t += (isDah[i] ? shape.dah : shape.dit) * scale[i]!;
-    resid.push(marks[i]![1] - t);
+    sum += marks[i]![1] - t;
   }
-  const m = mean(resid);
+  const m = sum / (2 * ch.length);
   let ssr = 0;
-  for (const r of resid) ssr += (r - m) * (r - m);
+  t = 0;
+  for (let k = 0; k < ch.length; k++) {
+    const i = ch[k]!;
+    if (k > 0) t += shape.element * scale[i]!;
+    const r0 = marks[i]![0] - t;
+    ssr += (r0 - m) * (r0 - m);
+    t += (isDah[i] ? shape.dah : shape.dit) * scale[i]!;
+    const r1 = marks[i]![1] - t;
+    ssr += (r1 - m) * (r1 - m);
+  }
   return ssr;
 }
 
