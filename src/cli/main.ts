@@ -9,7 +9,7 @@ type Register = (program: Command, ctx: CommandContext) => void;
 
 /**
  * The commands, in the order help lists them, each loaded when needed: a command's module brings
- * the signal code it runs (50–100 ms to load apiece), so `keyform batch …` loads batch alone rather
+ * the signal code it runs (up to 0.1 s to load), so `keyform batch …` loads batch alone rather
  * than the decoder, timing and shape code too. Help and unknown names load them all.
  */
 const COMMANDS: Record<string, () => Promise<Register>> = {
