@@ -318,13 +318,18 @@ if (!existsSync(bin) || !existsSync(fileURLToPath(new URL('../dist/cli/batch-wor
     say(`Batch: ${batchFiles} files × ${batchMinutes} min at ${batchRate / 1000} kHz (decode + timing + shape per file), built CLI, ${repeats} rounds`);
     const cpu = (r: ReturnType<typeof timeCli>): string => (r.cpuS === null ? '–' : `${r.cpuS.toFixed(2)} s (${Math.round((100 * r.cpuS) / r.wallS)} %)`);
     const rss = (r: ReturnType<typeof timeCli>): string => (r.maxRssMB === null ? '–' : `${r.maxRssMB.toFixed(0)} MB`);
+    // What two workers could reach in this round if together they needed no more CPU than one worker
+    // did: one worker's CPU time (its own thread plus the engine's background threads on the other
+    // core) done by two cores at the speed-up the control loop found for two busy cores.
+    const ceiling = (r: (typeof rounds)[number]): number | null => (r.one.cpuS === null ? null : r.control / (r.one.cpuS / r.one.wallS));
     printTable(
-      ['round', '1 worker', '2 workers', 'speed-up', 'CPU 1 worker (use)', 'CPU 2 workers (use)', 'peak RSS 1 / 2', 'control loop / array'],
+      ['round', '1 worker', '2 workers', 'speed-up', 'ceiling', 'CPU 1 worker (use)', 'CPU 2 workers (use)', 'peak RSS 1 / 2', 'control loop / array'],
       rounds.map((r, i) => [
         String(i + 1),
         `${r.one.wallS.toFixed(2)} s`,
         `${r.two.wallS.toFixed(2)} s`,
         `${(r.one.wallS / r.two.wallS).toFixed(2)}×`,
+        ceiling(r) === null ? '–' : `${ceiling(r)!.toFixed(2)}×`,
         cpu(r.one),
         cpu(r.two),
         `${rss(r.one)} / ${rss(r.two)}`,
@@ -339,6 +344,13 @@ if (!existsSync(bin) || !existsSync(fileURLToPath(new URL('../dist/cli/batch-wor
         `median of the rounds ${median(speedups).toFixed(2)}×, ${speedups.filter((x) => x >= 1.7).length} of ${rounds.length} rounds at 1.7× or more; ` +
         `controls' medians ${median(rounds.map((r) => r.control)).toFixed(2)}× (loop) and ${median(rounds.map((r) => r.controlArray)).toFixed(2)}× (array)`,
     );
+    const ceilings = rounds.map(ceiling).filter((x): x is number => x !== null);
+    if (ceilings.length > 0) {
+      say(
+        `ceiling (control loop ÷ one worker's use) median ${median(ceilings).toFixed(2)}×: ` +
+          `the rounds' speed-ups were ${Math.round((100 * median(speedups)) / median(ceilings))} % of it at the median`,
+      );
+    }
     say(`(the folder's ${warm.mb.toFixed(0)} MB were read once before the rounds, in ${warm.s.toFixed(1)} s, so that the first run need not wait for the disk)`);
     // A run that used much less than a core waited for something (the disk, when the cache could not
     // hold the folder): its speed-up says more about the disk than about keyform.
@@ -350,7 +362,8 @@ if (!existsSync(bin) || !existsSync(fileURLToPath(new URL('../dist/cli/batch-wor
   say('(controls: fixed work on 1 and on 2 threads just before the round, what the machine could give then: a loop of');
   say(' square roots, and multiply-adds over a 1 MiB array, which keeps the core and its caches busy as real work does;');
   say(' CPU time covers all threads: a use above 100 % with one worker is the engine compiling and collecting');
-  say(' garbage on background threads, which two workers must share with each other)');
+  say(' garbage on background threads, which two workers must share with each other; ceiling: the control loop\'s');
+  say(' speed-up ÷ one worker\'s use, what two workers could reach if they needed no more CPU than one did)');
 }
 say(`load average ${load()} at the end (other processes on the machine slow the wall-clock figures)`);
 if (!process.argv.includes('--keep')) rmSync(dir, { recursive: true, force: true });
