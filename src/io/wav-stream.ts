@@ -52,10 +52,22 @@ function s16Lookup(): Float32Array {
   }
   return s16Table;
 }
-/** The common case, mono 16-bit, in a loop of its own (a small function the compiler optimises well). */
-function s16Mono(u: Uint16Array, o: Float32Array, table: Float32Array): void {
-  const len = o.length;
-  for (let i = 0; i < len; i++) o[i] = table[u[i]!]!;
+/**
+ * The common case, mono 16-bit on a little-endian host, in a loop of its own (a small function the
+ * compiler optimises well): two samples per 32-bit load (the first in the low half), which halves
+ * the loads and loop steps; 2.1 against 2.7–3.6 ns a sample for one load per sample on the
+ * development machine. `off` must be a multiple of 4 (the scratch buffer's start).
+ */
+function s16Mono(buf: ArrayBufferLike, off: number, o: Float32Array, table: Float32Array): void {
+  const n = o.length;
+  const pairs = new Int32Array(buf, off, n >> 1);
+  const len = pairs.length;
+  for (let j = 0, i = 0; j < len; j++, i += 2) {
+    const w = pairs[j]!;
+    o[i] = table[w & 0xffff]!;
+    o[i + 1] = table[w >>> 16]!;
+  }
+  if (n & 1) o[n - 1] = table[new Uint16Array(buf, off + 2 * (n - 1), 1)[0]!]!;
 }
 const U8_TABLE = (() => {
   const t = new Float32Array(256);
@@ -147,9 +159,9 @@ export class PcmDeinterleaver {
       case 's16': {
         const table = s16Lookup();
         if (LITTLE_ENDIAN_HOST) {
-          const u = new Uint16Array(buf, off, n);
-          if (nch === 1) s16Mono(u, out[0]!, table);
+          if (nch === 1) s16Mono(buf, off, out[0]!, table);
           else {
+            const u = new Uint16Array(buf, off, n);
             for (let c = 0; c < nch; c++) {
               const o = out[c]!;
               for (let i = 0, k = c; i < frames; i++, k += nch) o[i] = table[u[k]!]!;

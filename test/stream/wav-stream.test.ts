@@ -159,6 +159,22 @@ describe('raw PCM', () => {
     expect(got).toEqual(values.map((v) => Math.fround(v < 0 ? v / 32768 : v / 32767)));
   });
 
+  it('reads every one of the 65,536 16-bit values, mono, in pieces of odd and even lengths, to the same scaling', () => {
+    // Mono s16 is converted two samples per 32-bit load; an odd number of samples in a push leaves
+    // one on its own. The reference is the scaling written out, as the whole-file reader (wav-decoder) uses it.
+    const bytes = Buffer.alloc(65536 * 2);
+    for (let v = -32768; v < 32768; v++) bytes.writeInt16LE(v, 2 * (v + 32768));
+    const expected = Array.from({ length: 65536 }, (_, k) => Math.fround(k < 32768 ? (k - 32768) / 32768 : (k - 32768) / 32767));
+    for (const pieceBytes of [2, 6, 7, 4096, 65537, 131072]) {
+      const parser = new RawPcmParser('-', { encoding: 's16le', sampleRate: 8000, channelCount: 1 });
+      const out: Float32Array[][] = [];
+      for (let pos = 0; pos < bytes.length; pos += pieceBytes) out.push(...parser.push(bytes.subarray(pos, pos + pieceBytes)));
+      const got = out.flatMap((c) => Array.from(c[0]!));
+      expect(got.length).toBe(65536);
+      expect(got).toEqual(expected);
+    }
+  });
+
   it('reads interleaved stereo f32le, split anywhere', () => {
     const frames = [[0.5, -0.25], [0.125, 1], [-1, 0]];
     const bytes = Buffer.alloc(frames.length * 8);
