@@ -15,6 +15,11 @@ export const WASM_SOURCES = [
     output: 'src/core/receive/wasm/sequence-step.wasm.ts',
     constant: 'SEQUENCE_STEP_WASM_BASE64',
   },
+  {
+    source: 'src/core/receive/wasm/mixer.as.ts',
+    output: 'src/core/receive/wasm/mixer.wasm.ts',
+    constant: 'MIXER_WASM_BASE64',
+  },
 ] as const;
 
 const ROOT = fileURLToPath(new URL('..', import.meta.url));
@@ -24,7 +29,7 @@ export async function compileWasm(source: string): Promise<Uint8Array> {
   let binary: Uint8Array | null = null;
   let errors = '';
   const { error } = await asc.main(
-    [source, '-O3', '--noAssert', '--runtime', 'stub', '--importMemory', '--noExportMemory', '--use', 'abort=', '-o', 'out.wasm'],
+    [source, '-O3', '--noAssert', '--runtime', 'stub', '--enable', 'simd', '--importMemory', '--noExportMemory', '--use', 'abort=', '-o', 'out.wasm'],
     {
       readFile: (name, baseDir) => {
         try {

@@ -1,13 +1,16 @@
 import { FRACTIONAL_ZERO } from './fractional.js';
+import { mixerModule } from './wasm/module.js';
 
 /**
  * Quadrature mixer and first decimation stage: multiplies the input by e^(−j·2π·toneHz·n/sampleRate)
  * and sums `samplesPerFrame` products into one complex frame (a boxcar, i.e. first-order CIC,
  * decimator). The oscillator is split in two: a table of e^(−jωn) for the n inside one frame, and
  * a phasor that advances once per frame, so each input sample costs two multiply-adds with no
- * dependency between samples. Everything after the mixer runs at the frame rate.
+ * dependency between samples. Everything after the mixer runs at the frame rate. The sample loop is
+ * WebAssembly (wasm/mixer.as.ts: the real and imaginary products in one pair of float64 lanes),
+ * over the mixer's own memory, which holds its state and table.
  */
-/** Slots of Mixer.st. */
+/** Slots of Mixer.st (float64 at byte 8·slot of the mixer's memory; see wasm/mixer.as.ts). */
 const P_RE = 0;
 const P_IM = 1;
 const STEP_RE = 2;
@@ -16,20 +19,39 @@ const ACC_RE = 4;
 const ACC_IM = 5;
 const IMG_RE = 6;
 const IMG_IM = 7;
+/** Byte offsets in the mixer's memory (wasm/mixer.as.ts): samples summed so far (int32), the table. */
+const COUNT_AT = 64;
+const TABLE_AT = 128;
+/** Samples copied into the mixer's memory at a time (at least two frames). */
+const PIECE_SAMPLES = 65536;
+
+/** The sample loop's export (wasm/mixer.as.ts). */
+type MixExport = (input: number, len: number, n: number, output: number, maxFrames: number, gains: number) => number;
 
 export class Mixer {
   readonly samplesPerFrame: number;
-  private readonly tabRe: Float64Array;
-  private readonly tabIm: Float64Array;
   /**
-   * Running state, in one Float64Array:
+   * Running state, a view of the first 64 bytes of the mixer's memory:
    * [P_RE, P_IM] e^(−jω·n0) at the start of the current frame; [STEP_RE, STEP_IM] e^(−jω·samplesPerFrame),
    * the phasor's step per frame; [ACC_RE, ACC_IM] the current frame's sums so far; [IMG_RE, IMG_IM]
    * D = (1/n)·Σ e^(−j·2ω·m) over one frame, the boxcar's gain at the image (twice the tone).
    */
-  private readonly st = new Float64Array(8);
-  /** Samples summed into the current frame so far. */
-  private count = 0;
+  private readonly st: Float64Array;
+  /** Samples summed into the current frame so far (one int32 of the memory). */
+  private readonly count: Int32Array;
+  /** e^(−jωk), k = 0…n−1, as (re, im) pairs. */
+  private readonly table: Float64Array;
+  /** Where the samples to mix go, and the frames come out (re, im, gain re, gain im). */
+  private readonly input: Float32Array;
+  private readonly inputAt: number;
+  private readonly piece: number;
+  private readonly outputAt: number;
+  private readonly maxFrames: number;
+  private readonly outRe: Float64Array;
+  private readonly outIm: Float64Array;
+  private readonly outGRe: Float64Array;
+  private readonly outGIm: Float64Array;
+  private readonly mixSamples: MixExport;
   private toneHzValue = FRACTIONAL_ZERO;
 
   /**
@@ -43,10 +65,27 @@ export class Mixer {
     toneHz: number,
     samplesPerFrame: number,
   ) {
-    this.samplesPerFrame = Math.max(1, Math.round(samplesPerFrame));
-    this.tabRe = new Float64Array(this.samplesPerFrame);
-    this.tabIm = new Float64Array(this.samplesPerFrame);
-    primeProcessRange();
+    const n = (this.samplesPerFrame = Math.max(1, Math.round(samplesPerFrame)));
+    // Memory laid out as wasm/mixer.as.ts reads it; its size is fixed, so the views stay valid.
+    this.piece = Math.max(PIECE_SAMPLES, 2 * n);
+    this.maxFrames = Math.ceil(this.piece / n) + 2;
+    this.inputAt = align16(TABLE_AT + 16 * n);
+    this.outputAt = align16(this.inputAt + 4 * this.piece);
+    const bytes = this.outputAt + 32 * this.maxFrames;
+    const pages = Math.ceil(bytes / 65536);
+    const memory = new WebAssembly.Memory({ initial: pages, maximum: pages });
+    const instance = new WebAssembly.Instance(mixerModule(), { env: { memory } });
+    this.mixSamples = instance.exports.mix as MixExport;
+    const buf = memory.buffer;
+    this.st = new Float64Array(buf, 0, 8);
+    this.count = new Int32Array(buf, COUNT_AT, 1);
+    this.table = new Float64Array(buf, TABLE_AT, 2 * n);
+    this.input = new Float32Array(buf, this.inputAt, this.piece);
+    const f = this.maxFrames;
+    this.outRe = new Float64Array(buf, this.outputAt, f);
+    this.outIm = new Float64Array(buf, this.outputAt + 8 * f, f);
+    this.outGRe = new Float64Array(buf, this.outputAt + 16 * f, f);
+    this.outGIm = new Float64Array(buf, this.outputAt + 24 * f, f);
     this.st[P_RE] = 1; // the phasor starts at e^0
     this.setTone(toneHz);
   }
@@ -73,8 +112,8 @@ export class Mixer {
         re = Math.cos(w * i);
         im = -Math.sin(w * i);
       }
-      this.tabRe[i] = re;
-      this.tabIm[i] = im;
+      this.table[2 * i] = re;
+      this.table[2 * i + 1] = im;
       const nr = re * cr - im * ci;
       im = re * ci + im * cr;
       re = nr;
@@ -105,94 +144,40 @@ export class Mixer {
     return this.processRange(chunk, 0, chunk.length, outRe, outIm, gainRe, gainIm);
   }
 
-  /** As process, for chunk[from…to) (no subarray view to allocate per call). */
+  /**
+   * As process, for chunk[from…to). The samples are copied into the mixer's memory, a piece at a
+   * time; a piece ends at the end of a frame, where the sample loop closes its partial sums anyway,
+   * so the frames do not depend on the piece size.
+   */
   processRange(chunk: Float32Array, from: number, to: number, outRe: Float64Array, outIm: Float64Array, gainRe?: Float64Array, gainIm?: Float64Array): number {
-    const st = this.st;
     const n = this.samplesPerFrame;
-    const tabRe = this.tabRe;
-    const tabIm = this.tabIm;
-    let re = st[ACC_RE]!;
-    let im = st[ACC_IM]!;
-    let count = this.count;
+    const gains = gainRe !== undefined && gainIm !== undefined;
     let frames = 0;
-    let i = from;
-    const len = to;
-    while (i < len) {
-      const stop = Math.min(len, i + (n - count));
-      // Four independent partial sums, so that the additions of neighbouring samples overlap
-      // instead of each waiting for the one before (about twice as fast at 48 kHz).
-      let re1 = 0, im1 = 0, re2 = 0, im2 = 0, re3 = 0, im3 = 0;
-      for (; i + 3 < stop; i += 4, count += 4) {
-        const x0 = chunk[i]!;
-        const x1 = chunk[i + 1]!;
-        const x2 = chunk[i + 2]!;
-        const x3 = chunk[i + 3]!;
-        re += x0 * tabRe[count]!;
-        im += x0 * tabIm[count]!;
-        re1 += x1 * tabRe[count + 1]!;
-        im1 += x1 * tabIm[count + 1]!;
-        re2 += x2 * tabRe[count + 2]!;
-        im2 += x2 * tabIm[count + 2]!;
-        re3 += x3 * tabRe[count + 3]!;
-        im3 += x3 * tabIm[count + 3]!;
+    for (let a = from; a < to; ) {
+      let len = to - a;
+      if (len > this.piece) {
+        const toFrameEnd = n - this.count[0]!;
+        len = toFrameEnd + n * Math.floor((this.piece - toFrameEnd) / n);
       }
-      for (; i < stop; i++, count++) {
-        const x = chunk[i]!;
-        re += x * tabRe[count]!;
-        im += x * tabIm[count]!;
+      this.input.set(chunk.subarray(a, a + len));
+      const got = this.mixSamples.call(null, this.inputAt, len, n, this.outputAt, this.maxFrames, gains ? 1 : 0);
+      for (let k = 0; k < got; k++) {
+        outRe[frames + k] = this.outRe[k]!;
+        outIm[frames + k] = this.outIm[k]!;
       }
-      re += re1 + re2 + re3;
-      im += im1 + im2 + im3;
-      if (count === n) {
-        const pr = st[P_RE]!;
-        const pi = st[P_IM]!;
-        outRe[frames] = (re * pr - im * pi) / n;
-        outIm[frames] = (re * pi + im * pr) / n;
-        if (gainRe && gainIm) {
-          // G = D·p², p = e^(−jω·n0) the phasor at the frame's first sample.
-          const p2r = pr * pr - pi * pi;
-          const p2i = 2 * pr * pi;
-          gainRe[frames] = st[IMG_RE]! * p2r - st[IMG_IM]! * p2i;
-          gainIm[frames] = st[IMG_RE]! * p2i + st[IMG_IM]! * p2r;
+      if (gains) {
+        for (let k = 0; k < got; k++) {
+          gainRe[frames + k] = this.outGRe[k]!;
+          gainIm[frames + k] = this.outGIm[k]!;
         }
-        frames++;
-        re = 0;
-        im = 0;
-        count = 0;
-        let nr = pr * st[STEP_RE]! - pi * st[STEP_IM]!;
-        let ni = pr * st[STEP_IM]! + pi * st[STEP_RE]!;
-        const g = 1.5 - 0.5 * (nr * nr + ni * ni); // keep the phasor on the unit circle
-        nr *= g;
-        ni *= g;
-        st[P_RE] = nr;
-        st[P_IM] = ni;
       }
+      frames += got;
+      a += len;
     }
-    st[ACC_RE] = re;
-    st[ACC_IM] = im;
-    this.count = count;
     return frames;
   }
 }
 
-let primed = false;
-/**
- * Runs processRange once over a few odd-length ranges (with and without image gains) on a small
- * mixer, so that every path of its loop has run before the engine optimises it. Otherwise a rarely
- * taken path (the last few samples of a block, the start in mid-frame) reached only after
- * optimisation sends the optimised loop back to slow code again and again, hundreds of times per
- * recording, boxing every intermediate number on the heap meanwhile.
- */
-function primeProcessRange(): void {
-  if (primed) return;
-  primed = true;
-  const m = new Mixer(8000, 700, 6);
-  const x = new Float32Array(23).fill(0.5);
-  const re = new Float64Array(8);
-  const im = new Float64Array(8);
-  for (let k = 0; k < 3; k++) {
-    m.processRange(x, 1, 23, re, im, re, im);
-    m.processRange(x, 0, 7, re, im);
-    m.processRange(x, 2, 3, re, im, re, im);
-  }
+function align16(bytes: number): number {
+  return Math.ceil(bytes / 16) * 16;
 }
