@@ -20,6 +20,11 @@ export const WASM_SOURCES = [
     output: 'src/core/receive/wasm/mixer.wasm.ts',
     constant: 'MIXER_WASM_BASE64',
   },
+  {
+    source: 'src/io/wasm/pcm.as.ts',
+    output: 'src/io/wasm/pcm.wasm.ts',
+    constant: 'PCM_WASM_BASE64',
+  },
 ] as const;
 
 const ROOT = fileURLToPath(new URL('..', import.meta.url));
