@@ -47,10 +47,14 @@ export class Mixer {
   private readonly piece: number;
   private readonly outputAt: number;
   private readonly maxFrames: number;
-  private readonly outRe: Float64Array;
-  private readonly outIm: Float64Array;
-  private readonly outGRe: Float64Array;
-  private readonly outGIm: Float64Array;
+  /**
+   * The frames of the last mixLoaded (and image gains), views of the mixer's memory: valid until the
+   * next call.
+   */
+  readonly frameRe: Float64Array;
+  readonly frameIm: Float64Array;
+  readonly frameGainRe: Float64Array;
+  readonly frameGainIm: Float64Array;
   private readonly mixSamples: MixExport;
   private toneHzValue = FRACTIONAL_ZERO;
 
@@ -82,10 +86,10 @@ export class Mixer {
     this.table = new Float64Array(buf, TABLE_AT, 2 * n);
     this.input = new Float32Array(buf, this.inputAt, this.piece);
     const f = this.maxFrames;
-    this.outRe = new Float64Array(buf, this.outputAt, f);
-    this.outIm = new Float64Array(buf, this.outputAt + 8 * f, f);
-    this.outGRe = new Float64Array(buf, this.outputAt + 16 * f, f);
-    this.outGIm = new Float64Array(buf, this.outputAt + 24 * f, f);
+    this.frameRe = new Float64Array(buf, this.outputAt, f);
+    this.frameIm = new Float64Array(buf, this.outputAt + 8 * f, f);
+    this.frameGainRe = new Float64Array(buf, this.outputAt + 16 * f, f);
+    this.frameGainIm = new Float64Array(buf, this.outputAt + 24 * f, f);
     this.st[P_RE] = 1; // the phasor starts at e^0
     this.setTone(toneHz);
   }
@@ -162,19 +166,39 @@ export class Mixer {
       this.input.set(chunk.subarray(a, a + len));
       const got = this.mixSamples.call(null, this.inputAt, len, n, this.outputAt, this.maxFrames, gains ? 1 : 0);
       for (let k = 0; k < got; k++) {
-        outRe[frames + k] = this.outRe[k]!;
-        outIm[frames + k] = this.outIm[k]!;
+        outRe[frames + k] = this.frameRe[k]!;
+        outIm[frames + k] = this.frameIm[k]!;
       }
       if (gains) {
         for (let k = 0; k < got; k++) {
-          gainRe[frames + k] = this.outGRe[k]!;
-          gainIm[frames + k] = this.outGIm[k]!;
+          gainRe[frames + k] = this.frameGainRe[k]!;
+          gainIm[frames + k] = this.frameGainIm[k]!;
         }
       }
       frames += got;
       a += len;
     }
     return frames;
+  }
+
+  /** Samples the mixer's memory holds at once (see load). */
+  get capacity(): number {
+    return this.piece;
+  }
+
+  /** Copies chunk[from…to), at most `capacity` samples, into the mixer's memory for mixLoaded. */
+  load(chunk: Float32Array, from: number, to: number): void {
+    if (to - from > this.piece) throw new RangeError(`Mixer.load: ${to - from} samples, more than the ${this.piece} it holds`);
+    this.input.set(chunk.subarray(from, to));
+  }
+
+  /**
+   * Mixes the loaded samples [from…to) (offsets into what load copied) as processRange would,
+   * with image gains, leaving the frames in frameRe, frameIm, frameGainRe and frameGainIm (no copy
+   * out); returns how many. For a caller that mixes a block in many short ranges (a slot at a time).
+   */
+  mixLoaded(from: number, to: number): number {
+    return this.mixSamples.call(null, this.inputAt + 4 * from, to - from, this.samplesPerFrame, this.outputAt, this.maxFrames, 1);
   }
 }
 

@@ -413,10 +413,24 @@ export class StreamDecoder {
     const mixer = this.mixer!;
     // One slot at a time, so that a retune by the tone tracker applies from the next slot on.
     const block = mixer.samplesPerFrame * this.framesPerSlot;
-    this.ensureFrameBuffers(block);
-    for (let off = 0; off < chunk.length; off += block) {
-      const n = mixer.processRange(chunk, off, Math.min(chunk.length, off + block), this.frameRe, this.frameIm, this.frameGRe, this.frameGIm);
-      this.frames(this.frameRe, this.frameIm, this.frameGRe, this.frameGIm, n);
+    if (block > mixer.capacity) {
+      this.ensureFrameBuffers(block);
+      for (let off = 0; off < chunk.length; off += block) {
+        const n = mixer.processRange(chunk, off, Math.min(chunk.length, off + block), this.frameRe, this.frameIm, this.frameGRe, this.frameGIm);
+        this.frames(this.frameRe, this.frameIm, this.frameGRe, this.frameGIm, n);
+      }
+      return;
+    }
+    // The samples go into the mixer's memory a whole number of slots at a time, and each slot's
+    // frames are read where the mixer leaves them: the same slots as above, with no copy per slot.
+    const piece = block * Math.floor(mixer.capacity / block);
+    for (let p0 = 0; p0 < chunk.length; p0 += piece) {
+      const p1 = Math.min(chunk.length, p0 + piece);
+      mixer.load(chunk, p0, p1);
+      for (let off = p0; off < p1; off += block) {
+        const n = mixer.mixLoaded(off - p0, Math.min(p1, off + block) - p0);
+        this.frames(mixer.frameRe, mixer.frameIm, mixer.frameGainRe, mixer.frameGainIm, n);
+      }
     }
   }
 
