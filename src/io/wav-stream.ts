@@ -54,6 +54,7 @@ function s16Lookup(): Float32Array {
   }
   return s16Table;
 }
+
 /** Samples converted per call of the WebAssembly converter (its memory holds them in and out). */
 const S16_PIECE = 1 << 17;
 
@@ -88,6 +89,7 @@ class S16MonoConverter {
   }
 }
 let s16Mono: S16MonoConverter | null = null;
+
 const U8_TABLE = (() => {
   const t = new Float32Array(256);
   for (let b = 0; b < 256; b++) {
