@@ -78,11 +78,11 @@ class S16MonoConverter {
     this.floatsOut = new Float32Array(memory.buffer, 2 * S16_PIECE, S16_PIECE);
   }
 
-  /** o[i] = the i-th little-endian int16 of bytes[off…], scaled as the table does. */
-  run(bytes: Uint8Array, off: number, o: Float32Array): void {
+  /** o[i] = the i-th little-endian int16 of bytes, scaled as the table does. */
+  run(bytes: Uint8Array, o: Float32Array): void {
     for (let a = 0; a < o.length; a += S16_PIECE) {
       const n = Math.min(S16_PIECE, o.length - a);
-      this.bytesIn.set(bytes.subarray(off + 2 * a, off + 2 * (a + n)));
+      this.bytesIn.set(bytes.subarray(2 * a, 2 * (a + n)));
       this.convert(0, 2 * S16_PIECE, n);
       o.set(n === S16_PIECE ? this.floatsOut : this.floatsOut.subarray(0, n), a);
     }
@@ -180,7 +180,7 @@ export class PcmDeinterleaver {
       case 's16': {
         if (nch === 1) {
           s16Mono ??= new S16MonoConverter();
-          s16Mono.run(work, 0, out[0]!);
+          s16Mono.run(work, out[0]!);
           break;
         }
         const table = s16Lookup();

@@ -44,7 +44,8 @@ export class Mixer {
   /** Where the samples to mix go, and the frames come out (re, im, gain re, gain im). */
   private readonly input: Float32Array;
   private readonly inputAt: number;
-  private readonly piece: number;
+  /** Samples the mixer's memory holds at once (see load): at least two frames. */
+  readonly capacity: number;
   private readonly outputAt: number;
   private readonly maxFrames: number;
   /**
@@ -71,10 +72,10 @@ export class Mixer {
   ) {
     const n = (this.samplesPerFrame = Math.max(1, Math.round(samplesPerFrame)));
     // Memory laid out as wasm/mixer.as.ts reads it; its size is fixed, so the views stay valid.
-    this.piece = Math.max(PIECE_SAMPLES, 2 * n);
-    this.maxFrames = Math.ceil(this.piece / n) + 2;
+    this.capacity = Math.max(PIECE_SAMPLES, 2 * n);
+    this.maxFrames = Math.ceil(this.capacity / n) + 2;
     this.inputAt = align16(TABLE_AT + 16 * n);
-    this.outputAt = align16(this.inputAt + 4 * this.piece);
+    this.outputAt = align16(this.inputAt + 4 * this.capacity);
     const bytes = this.outputAt + 32 * this.maxFrames;
     const pages = Math.ceil(bytes / 65536);
     const memory = new WebAssembly.Memory({ initial: pages, maximum: pages });
@@ -84,7 +85,7 @@ export class Mixer {
     this.st = new Float64Array(buf, 0, 8);
     this.count = new Int32Array(buf, COUNT_AT, 1);
     this.table = new Float64Array(buf, TABLE_AT, 2 * n);
-    this.input = new Float32Array(buf, this.inputAt, this.piece);
+    this.input = new Float32Array(buf, this.inputAt, this.capacity);
     const f = this.maxFrames;
     this.frameRe = new Float64Array(buf, this.outputAt, f);
     this.frameIm = new Float64Array(buf, this.outputAt + 8 * f, f);
@@ -159,11 +160,11 @@ export class Mixer {
     let frames = 0;
     for (let a = from; a < to; ) {
       let len = to - a;
-      if (len > this.piece) {
+      if (len > this.capacity) {
         const toFrameEnd = n - this.count[0]!;
-        len = toFrameEnd + n * Math.floor((this.piece - toFrameEnd) / n);
+        len = toFrameEnd + n * Math.floor((this.capacity - toFrameEnd) / n);
       }
-      this.input.set(chunk.subarray(a, a + len));
+      this.load(chunk, a, a + len);
       const got = this.mixSamples.call(null, this.inputAt, len, n, this.outputAt, this.maxFrames, gains ? 1 : 0);
       for (let k = 0; k < got; k++) {
         outRe[frames + k] = this.frameRe[k]!;
@@ -181,14 +182,9 @@ export class Mixer {
     return frames;
   }
 
-  /** Samples the mixer's memory holds at once (see load). */
-  get capacity(): number {
-    return this.piece;
-  }
-
   /** Copies chunk[from…to), at most `capacity` samples, into the mixer's memory for mixLoaded. */
   load(chunk: Float32Array, from: number, to: number): void {
-    if (to - from > this.piece) throw new RangeError(`Mixer.load: ${to - from} samples, more than the ${this.piece} it holds`);
+    if (to - from > this.capacity) throw new RangeError(`Mixer.load: ${to - from} samples, more than the ${this.capacity} it holds`);
     this.input.set(chunk.subarray(from, to));
   }
 
