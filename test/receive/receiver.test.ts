@@ -4,7 +4,7 @@
  * impulse noise).
  */
 import { describe, expect, it } from 'vitest';
-import { decodeSamples, findTone, lnI0, pickChannel, StreamDecoder } from '../../src/core/receive/index.js';
+import { decodeSamples, findTone, lnI0, pickChannel } from '../../src/core/receive/index.js';
 import { Mixer } from '../../src/core/receive/mixer.js';
 import { keyingEnvelope } from '../../src/core/signal/edges.js';
 import { applyFading, handTiming } from '../../src/core/signal/impair.js';
@@ -13,6 +13,7 @@ import { synthesizeTone } from '../../src/core/signal/synth.js';
 import { farnsworthGaps } from '../../src/core/timing/speed.js';
 import { planKeying } from '../../src/core/timing/plan.js';
 import type { Interval } from '../../src/core/timeline.js';
+import { decodeInChunks } from './chunked.js';
 
 const RATE = 8000;
 const AMP = 10 ** (-6 / 20);
@@ -104,14 +105,7 @@ describe('decoder', () => {
     const x = addNoise(keyed(plan.marks), noiseSigmaForSnr(AMP, RATE, 3), 21);
     const whole = decodeSamples(x, RATE);
     const pieces: string[] = [];
-    const d = new StreamDecoder(RATE, { onText: (t) => pieces.push(t) });
-    const rnd = seededRandom(4);
-    for (let off = 0; off < x.length; ) {
-      const n = 1 + Math.floor(rnd() * 3000);
-      d.push(x.subarray(off, off + n));
-      off += n;
-    }
-    const streamed = d.finish();
+    const streamed = decodeInChunks(x, RATE, seededRandom(4), 3000, { onText: (t) => pieces.push(t) });
     expect(streamed.text).toBe(plan.text);
     expect(streamed.text).toBe(whole.text);
     expect(streamed.marks).toEqual(whole.marks);

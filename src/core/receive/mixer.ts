@@ -95,6 +95,11 @@ export class Mixer {
     this.setTone(toneHz);
   }
 
+  /** Samples summed into the frame in progress (0…samplesPerFrame − 1): where the next sample falls in its frame. */
+  get samplesInFrame(): number {
+    return this.count[0]!;
+  }
+
   /** Current mixing frequency [Hz]. */
   get toneHz(): number {
     return this.toneHzValue;
