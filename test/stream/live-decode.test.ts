@@ -1,6 +1,7 @@
 import { Readable } from 'node:stream';
 import { describe, expect, it } from 'vitest';
 import { decodeAudioSource, followText } from '../../src/cli/analyze-recording.js';
+import { synthesizeDriftingTone } from '../../src/core/signal/impair.js';
 import { addNoise, noiseSigmaForSnr } from '../../src/core/signal/noise.js';
 import { synthesizeTone } from '../../src/core/signal/synth.js';
 import { planKeying } from '../../src/core/timing/plan.js';
@@ -47,6 +48,23 @@ describe('decoding a raw PCM pipe chunk by chunk (keyform decode - --raw s16le -
     expect(pieces.join('').trim()).toBe(text);
     // 24 WPM PARIS as planned, within 5 %.
     expect(Math.abs(result.wpm! - 24) / 24).toBeLessThan(0.05);
+  });
+
+  it('gives the same marks and envelope whatever sizes the pipe hands its bytes out in (a drifting tone, retuned as it goes)', async () => {
+    const plan = planKeying('Q7ZKT DE Q3ABC TEST RST 599', { wpm: 22 });
+    const x = synthesizeDriftingTone({ marks: plan.marks, sampleRate: 8000, toneHz: 650, levelDb: -6, edge: 'raised-cosine', riseMs: 5, padMs: 400 }, (t) => 3 * t).samples;
+    addNoise(x, noiseSigmaForSnr(10 ** (-6 / 20), 8000, 10), 5);
+    const bytes = s16le([x]);
+    const results = [];
+    for (const piece of [777, 4096, 65536, bytes.length]) {
+      const audio = await openAudio('-', { stdin: pipeOf(bytes, piece), raw: 's16le', rate: 8000 });
+      results.push((await decodeAudioSource(audio, { keepEnvelope: true })).result);
+    }
+    expect(results[0]!.text).toBe(plan.text);
+    for (const r of results.slice(1)) {
+      expect(r.marks).toEqual(results[0]!.marks);
+      expect(r.envelope!.values).toEqual(results[0]!.envelope!.values);
+    }
   });
 
   it('picks the channel carrying the keyed tone in a two-channel stream', async () => {
