@@ -8,6 +8,9 @@ import { BATCH_COLUMNS, type BatchRow } from '../../src/cli/batch-row.js';
 import { collectInputs, formatRow, csvHeader } from '../../src/cli/commands/batch.js';
 import { main } from '../../src/cli/main.js';
 import type { CliIo } from '../../src/cli/io.js';
+import { analyzeRecording } from '../../src/cli/analyze-recording.js';
+import { synthesizeDriftingTone } from '../../src/core/signal/impair.js';
+import { addNoise, noiseSigmaForSnr } from '../../src/core/signal/noise.js';
 import { synthesizeTone } from '../../src/core/signal/synth.js';
 import { planKeying } from '../../src/core/timing/plan.js';
 import { encodeWav } from '../../src/io/wav-write.js';
@@ -100,6 +103,26 @@ describe('keyform batch', () => {
     const forced = await run(['batch', join(folder, 'q7zkt-a.wav'), '--out', out, '--force']);
     expect(forced.code).toBe(0);
     expect((parse(readFileSync(out, 'utf8'), { columns: true }) as unknown[]).length).toBe(1);
+  });
+
+  it("gives a file the same row whatever a worker analysed before it (nothing of one file's leaks into the next)", async () => {
+    // A worker thread keeps its engine, and some objects of the file before, from one file to the
+    // next; a row must still be a function of its file alone. A different kind of file in between:
+    // 48 kHz, a drifting tone at 12 dB SNR, then a broken file.
+    const other = join(root, 'drifting-48k.wav');
+    const plan = planKeying('Q3ABC DE Q7ZKT RST 579', { wpm: 25 });
+    const x = synthesizeDriftingTone({ marks: plan.marks, sampleRate: 48000, toneHz: 820, levelDb: -6, edge: 'raised-cosine', riseMs: 3, padMs: 300 }, (t) => 2 * t).samples;
+    addNoise(x, noiseSigmaForSnr(10 ** (-6 / 20), 48000, 12), 3);
+    writeFileSync(other, encodeWav({ sampleRate: 48000, channels: [x] }));
+    const a = join(folder, 'q7zkt-a.wav');
+    const order = [a, other, join(folder, 'broken.wav'), other, a];
+    const rows: BatchRow[] = [];
+    for (const file of order) rows.push(await analyzeRecording(file, {}));
+    expect(rows[0]!.text.trim()).toBe('Q7ZKT TEST');
+    expect(rows[1]!.text.trim()).toBe(plan.text);
+    expect(rows[2]!.verdict).toBe('error');
+    expect(rows[4]).toEqual(rows[0]);
+    expect(rows[3]).toEqual(rows[1]);
   });
 
   it('writes JSON Lines, one object per file', async () => {
