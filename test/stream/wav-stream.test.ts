@@ -237,10 +237,10 @@ describe('openAudio', () => {
 });
 
 describe('choosing the path', () => {
-  it('streams a file over 64 MiB without reading it whole, and stops reading when the consumer stops', async () => {
+  it('streams a file over 16 MiB without reading it whole, and stops reading when the consumer stops', async () => {
     const { openSync, closeSync, ftruncateSync, writeSync } = await import('node:fs');
     const path = join(dir, 'long.wav');
-    const dataBytes = 70 * 1024 * 1024; // 70 MiB of 16-bit mono: over the 64 MiB threshold
+    const dataBytes = 17 * 1024 * 1024; // 17 MiB of 16-bit mono: over the 16 MiB threshold
     const header = Buffer.from(encodeWav({ sampleRate: 8000, channels: [new Float32Array(0)] }));
     header.writeUInt32LE(36 + dataBytes, 4);
     header.writeUInt32LE(dataBytes, 40);
@@ -250,14 +250,14 @@ describe('choosing the path', () => {
     closeSync(fd);
     const audio = await openAudio(path);
     expect(audio.streaming).toBe(true);
-    // 70 MiB / 2 bytes per frame / 8000 Hz [analytic].
+    // 17 MiB / 2 bytes per frame / 8000 Hz [analytic].
     expect(audio.durationMs).toBeCloseTo((dataBytes / 2 / 8000) * 1000, 6);
     let frames = 0;
     for await (const [ch] of audio.chunks()) {
       frames += ch!.length;
       if (frames >= 1_000_000) break;
     }
-    // Two blocks of 1 MiB read, not 70: the first holds the 44-byte header, so (2 MiB − 44) / 2 frames.
+    // Two blocks of 1 MiB read, not 17: the first holds the 44-byte header, so (2 MiB − 44) / 2 frames.
     expect(frames).toBe((2 * 1024 * 1024 - 44) / 2);
   });
 
