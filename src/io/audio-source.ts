@@ -19,7 +19,7 @@ import {
 /**
  * Files larger than this take the streaming path [bytes] (16 MiB: 17 minutes of 8 kHz mono 16-bit).
  * Reading whole costs about five times the file in memory (the bytes, and a float per sample): an
- * hour at 8 kHz (58 MB) peaked at 314 MB that way against 108 MB streamed, and decoded no faster.
+ * hour at 8 kHz (58 MB) peaked at 314 MB that way against about 100 MB streamed, and decoded no faster.
  */
 export const STREAM_ABOVE_BYTES = 16 * 1024 * 1024;
 /** Largest chunk handed out by the whole-file path [frames]. */

@@ -5,7 +5,6 @@
  */
 import { describe, expect, it } from 'vitest';
 import { decodeSamples } from '../../src/core/receive/index.js';
-import { decodeInChunks } from './chunked.js';
 import { fitToneLine, ToneTracker } from '../../src/core/receive/tone-track.js';
 import { synthesizeDriftingTone } from '../../src/core/signal/impair.js';
 import { addNoise, gaussianSource, noiseSigmaForSnr, seededRandom } from '../../src/core/signal/noise.js';
@@ -47,24 +46,6 @@ describe('tone drift', () => {
     expect(5 * lengthS).toBeGreaterThan(150);
     const r = decodeSamples(x, RATE);
     expect(r.text).toBe(plan.text);
-  });
-
-  it('gives the same marks and envelope however the stream is cut into chunks, while the tracker retunes the mixer', () => {
-    // 3 Hz/s of drift: the mixer is retuned every few slots, each time from the end of a slot. A file
-    // is read a block at a time and a pipe as its data arrive, so chunk ends fall anywhere; the marks
-    // must not depend on where (nothing about them may, the decoder being a function of the samples).
-    const { x, plan } = drifting('Q7ZKT DE Q3ABC TEST RST 599', 22, 8, (t) => 3 * t, 15);
-    const whole = decodeSamples(x, RATE, { keepEnvelope: true });
-    expect(whole.text).toBe(plan.text);
-    const rnd = seededRandom(8);
-    for (const maxChunk of [997, 4096, 30011]) {
-      const r = decodeInChunks(x, RATE, rnd, maxChunk, { keepEnvelope: true });
-      expect(r.text).toBe(whole.text);
-      expect(r.marks).toEqual(whole.marks);
-      expect(r.toneHz).toBe(whole.toneHz);
-      // The matched-filter envelope, unrounded: a retune a few samples late would show in it.
-      expect(r.envelope!.values).toEqual(whole.envelope!.values);
-    }
   });
 
   it('fits the drift of the pre-roll: 2 Hz/s read within 0.1 Hz/s, the starting tone within 0.5 Hz', () => {

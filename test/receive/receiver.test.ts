@@ -8,12 +8,11 @@ import { decodeSamples, findTone, lnI0, pickChannel } from '../../src/core/recei
 import { Mixer } from '../../src/core/receive/mixer.js';
 import { keyingEnvelope } from '../../src/core/signal/edges.js';
 import { applyFading, handTiming } from '../../src/core/signal/impair.js';
-import { addNoise, noiseSigmaForSnr, seededRandom } from '../../src/core/signal/noise.js';
+import { addNoise, noiseSigmaForSnr } from '../../src/core/signal/noise.js';
 import { synthesizeTone } from '../../src/core/signal/synth.js';
 import { farnsworthGaps } from '../../src/core/timing/speed.js';
 import { planKeying } from '../../src/core/timing/plan.js';
 import type { Interval } from '../../src/core/timeline.js';
-import { decodeInChunks } from './chunked.js';
 
 const RATE = 8000;
 const AMP = 10 ** (-6 / 20);
@@ -100,18 +99,6 @@ function patternSender(u: number): { marks: Interval[]; send: (pattern: string) 
 
 describe('decoder', () => {
   const plan = planKeying('Q7ZKT DE Q3ABC TEST', { wpm: 20 });
-
-  it('gives the same result whatever the chunk sizes, and onText adds up to the text', () => {
-    const x = addNoise(keyed(plan.marks), noiseSigmaForSnr(AMP, RATE, 3), 21);
-    const whole = decodeSamples(x, RATE);
-    const pieces: string[] = [];
-    const streamed = decodeInChunks(x, RATE, seededRandom(4), 3000, { onText: (t) => pieces.push(t) });
-    expect(streamed.text).toBe(plan.text);
-    expect(streamed.text).toBe(whole.text);
-    expect(streamed.marks).toEqual(whole.marks);
-    expect(pieces.join('')).toBe(plan.text);
-    expect(pieces.length).toBe(plan.characters.length);
-  });
 
   it('estimates the SNR as defined (key-down carrier over noise in 2500 Hz) within 1.5 dB', () => {
     for (const snrDb of [-6, 0, 10]) {

@@ -411,20 +411,17 @@ export class StreamDecoder {
 
   private mix(chunk: Float32Array): void {
     const mixer = this.mixer!;
-    // One slot at a time, so that a retune by the tone tracker applies from the next slot on. The
-    // ranges end where the stream's slots end, not where the chunk's blocks would: the first range
-    // finishes the slot that the chunk before (or the pre-roll) began, so the retunes fall on the
-    // same samples, and the output is the same, however the stream is cut into chunks (a file read
-    // a block at a time, or a pipe read as its data come).
+    // One slot at a time, so that a retune by the tone tracker applies from the next slot on. Each
+    // range ends where the stream's current slot ends (samplesToSlotEnd), not where the chunk's
+    // blocks would: the retunes then fall on the same samples, and the output is the same, however
+    // the stream is cut into chunks (a file read a block at a time, or a pipe read as its data come).
     const block = mixer.samplesPerFrame * this.framesPerSlot;
-    let inSlot = this.slotFill * mixer.samplesPerFrame + mixer.samplesInFrame;
     if (block > mixer.capacity) {
       this.ensureFrameBuffers(block);
       for (let off = 0; off < chunk.length; ) {
-        const end = Math.min(chunk.length, off + block - inSlot);
+        const end = Math.min(chunk.length, off + this.samplesToSlotEnd());
         const n = mixer.processRange(chunk, off, end, this.frameRe, this.frameIm, this.frameGRe, this.frameGIm);
         this.frames(this.frameRe, this.frameIm, this.frameGRe, this.frameGIm, n);
-        inSlot = (inSlot + end - off) % block;
         off = end;
       }
       return;
@@ -432,18 +429,22 @@ export class StreamDecoder {
     // The samples go into the mixer's memory many slots at a time, and each slot's frames are read
     // where the mixer leaves them: the same ranges as above, with no copy per slot.
     const piece = block * Math.floor(mixer.capacity / block);
-    for (let p0 = 0; p0 < chunk.length; ) {
+    for (let p0 = 0; p0 < chunk.length; p0 += piece) {
       const p1 = Math.min(chunk.length, p0 + piece);
       mixer.load(chunk, p0, p1);
       for (let off = p0; off < p1; ) {
-        const end = Math.min(p1, off + block - inSlot);
+        const end = Math.min(p1, off + this.samplesToSlotEnd());
         const n = mixer.mixLoaded(off - p0, end - p0);
         this.frames(mixer.frameRe, mixer.frameIm, mixer.frameGainRe, mixer.frameGainIm, n);
-        inSlot = (inSlot + end - off) % block;
         off = end;
       }
-      p0 = p1;
     }
+  }
+
+  /** Samples still to mix before the current slot ends: its frames not yet taken, less the frame begun. */
+  private samplesToSlotEnd(): number {
+    const mixer = this.mixer!;
+    return (this.framesPerSlot - this.slotFill) * mixer.samplesPerFrame - mixer.samplesInFrame;
   }
 
   /**
