@@ -16,12 +16,10 @@
  * which of the two worker counts runs first. Prints a table per round and the medians.
  */
 import { spawnSync } from 'node:child_process';
-import { existsSync, readdirSync, statSync } from 'node:fs';
-import { join } from 'node:path';
+import { existsSync, statSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
-import { setFlagsFromString } from 'node:v8';
-
-const workerFile = fileURLToPath(new URL('../dist/cli/batch-worker.js', import.meta.url));
+import { collectInputs, compileOnWorkerThreadsWhenBusy, workerPath, workOrder } from '../src/cli/commands/batch.js';
+import { median } from '../src/core/measure/timing-stats.js';
 
 interface ChildOut {
   /** Wall time of each timed pass over the folder [s]. */
@@ -34,14 +32,13 @@ interface ChildOut {
 if (process.argv[2] === '--child') {
   const [jobsArg, folder, warmArg, passesArg] = process.argv.slice(3);
   const jobs = Number(jobsArg);
-  // As `keyform batch` does with as many workers as cores: the engine compiles on the worker threads.
-  if (jobs >= 2) setFlagsFromString('--no-concurrent-recompilation');
-  const files = readdirSync(folder!).filter((f) => f.endsWith('.wav')).sort().map((f) => join(folder!, f));
-  const sizes = new Map(files.map((f) => [f, statSync(f).size]));
-  const queue = jobs > 1 ? [...files].sort((a, b) => sizes.get(b)! - sizes.get(a)!) : files;
+  // The files, their order and the engine's settings as `keyform batch` has them.
+  const files = collectInputs([folder!]);
+  const queue = workOrder(files, files.map((f) => statSync(f).size), jobs);
+  compileOnWorkerThreadsWhenBusy(jobs);
   const { Piscina } = await import('piscina');
   // execArgv: [] so that the workers do not inherit this process's TypeScript loader (the CLI's do not have one).
-  const pool = new Piscina({ filename: workerFile, minThreads: jobs, maxThreads: jobs, idleTimeout: 60_000, execArgv: [] });
+  const pool = new Piscina({ filename: workerPath(), minThreads: jobs, maxThreads: jobs, idleTimeout: 60_000, execArgv: [] });
   const options = { shapeSeconds: 60, skipShape: false };
   const pass = async (): Promise<number> => {
     const t0 = performance.now();
@@ -66,10 +63,11 @@ if (process.argv[2] === '--child') {
 
 // ---------------------------------------------------------------- main
 const folder = process.argv[2];
-if (!folder || !existsSync(folder) || !existsSync(workerFile)) {
-  process.stderr.write('usage: npx tsx bench/batch-bound.ts FOLDER [--rounds R]   (needs the built worker: npm run build)\n');
+if (!folder || !existsSync(folder)) {
+  process.stderr.write('usage: npx tsx bench/batch-bound.ts FOLDER [--rounds R] [--warm-passes W] [--passes P]\n');
   process.exit(2);
 }
+workerPath(); // says to run npm run build when the worker is not built
 const numberArg = (name: string, fallback: number): number => (process.argv.includes(name) ? Number(process.argv[process.argv.indexOf(name) + 1]) : fallback);
 const rounds = numberArg('--rounds', 4);
 const warmPasses = numberArg('--warm-passes', 2);
@@ -82,25 +80,26 @@ function runChild(jobs: number): ChildOut {
   return JSON.parse(r.stdout.trim().split('\n').pop()!) as ChildOut;
 }
 
-const median = (xs: number[]): number => {
-  const s = [...xs].sort((a, b) => a - b);
-  return s.length % 2 ? s[(s.length - 1) / 2]! : (s[s.length / 2 - 1]! + s[s.length / 2]!) / 2;
-};
-
 process.stdout.write(`batch bound: ${folder}, ${rounds} rounds; cold = a pool's first pass over the folder (as keyform batch), warm = the fastest of ${passes} passes after ${warmPasses} warm-up passes\n`);
 process.stdout.write('| round | cold 1 | cold 2 | cold speed-up | warm 1 | warm 2 | warm speed-up |\n|---|---|---|---|---|---|---|\n');
 const cold: number[] = [];
 const warm: number[] = [];
 for (let i = 0; i < rounds; i++) {
-  const [a, b] = i % 2 === 0 ? [runChild(1), runChild(2)] : ((x, y) => [y, x])(runChild(2), runChild(1));
-  const one = a!;
-  const two = b!;
-  const c = one.warmS[0]! / two.warmS[0]!;
-  const w = Math.min(...one.passS) / Math.min(...two.passS);
-  cold.push(c);
-  warm.push(w);
+  let one: ChildOut;
+  let two: ChildOut;
+  if (i % 2 === 0) {
+    one = runChild(1);
+    two = runChild(2);
+  } else {
+    two = runChild(2);
+    one = runChild(1);
+  }
+  const [cold1, cold2] = [one.warmS[0]!, two.warmS[0]!];
+  const [warm1, warm2] = [Math.min(...one.passS), Math.min(...two.passS)];
+  cold.push(cold1 / cold2);
+  warm.push(warm1 / warm2);
   process.stdout.write(
-    `| ${i + 1} | ${one.warmS[0]!.toFixed(2)} s | ${two.warmS[0]!.toFixed(2)} s | ${c.toFixed(2)}× | ${Math.min(...one.passS).toFixed(2)} s | ${Math.min(...two.passS).toFixed(2)} s | ${w.toFixed(2)}× |\n`,
+    `| ${i + 1} | ${cold1.toFixed(2)} s | ${cold2.toFixed(2)} s | ${(cold1 / cold2).toFixed(2)}× | ${warm1.toFixed(2)} s | ${warm2.toFixed(2)} s | ${(warm1 / warm2).toFixed(2)}× |\n`,
   );
 }
 process.stdout.write(`medians: cold ${median(cold).toFixed(2)}×, warm ${median(warm).toFixed(2)}× (warm at 1.7× or more in ${warm.filter((x) => x >= 1.7).length} of ${rounds} rounds)\n`);

@@ -383,8 +383,18 @@ Examples:
  * of 5–9 s; once 0.11 s slower), measured with the built CLI. With fewer workers than cores the
  * default stays: the compiler then runs on an idle core for free.
  */
-function compileOnWorkerThreads(): void {
-  setFlagsFromString('--no-concurrent-recompilation');
+export function compileOnWorkerThreadsWhenBusy(jobs: number): void {
+  if (jobs >= availableParallelism()) setFlagsFromString('--no-concurrent-recompilation');
+}
+
+/**
+ * The order in which `jobs` workers take the files: with several, the largest first, so that the
+ * last file to finish is a short one and no worker waits long for another at the end; one worker
+ * keeps the given order.
+ * @example workOrder(['a.wav', 'b.wav'], [10, 20], 2) //=> ['b.wav', 'a.wav']
+ */
+export function workOrder(files: readonly string[], sizes: readonly number[], jobs: number): string[] {
+  return jobs > 1 ? files.map((f, i) => ({ f, size: sizes[i]! })).sort((a, b) => b.size - a.size).map((x) => x.f) : [...files];
 }
 
 async function runBatch(inputs: string[], o: BatchCliOptions, ctx: CommandContext): Promise<void> {
@@ -410,11 +420,9 @@ async function runBatch(inputs: string[], o: BatchCliOptions, ctx: CommandContex
   }
   const sizes = files.map(fileSize);
   const jobs = Math.min(o.jobs ?? defaultJobs(sizes, availableParallelism()), files.length);
-  // Several workers: the largest files first, so that the last file to finish is a short one and
-  // no worker waits long for another at the end (one worker keeps the folder's order).
-  const queue = jobs > 1 ? files.map((f, i) => ({ f, size: sizes[i]! })).sort((a, b) => b.size - a.size).map((x) => x.f) : files;
+  const queue = workOrder(files, sizes, jobs);
   const filename = workerPath();
-  if (jobs >= availableParallelism()) compileOnWorkerThreads();
+  compileOnWorkerThreadsWhenBusy(jobs);
   const writer = o.out ? new ReportWriter(o.out, Boolean(o.force), earlier ? earlier.lines : null) : null;
   const { Piscina } = await import('piscina');
   const pool = new Piscina<BatchTask, BatchRow>({ filename, minThreads: jobs, maxThreads: jobs, idleTimeout: 1000 });
